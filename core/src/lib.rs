@@ -1,0 +1,117 @@
+//! # Stagewright: stage equations for one-transistor amplifier stages
+//!
+//! This crate turns a discrete bipolar stage (common emitter, common
+//! collector, common base; NPN or PNP; voltage-divider bias) into numbers an
+//! engineer can sign off: the DC operating point, the small-signal model,
+//! midband gains and impedances, the frequency response and its corners,
+//! the output swing limits, the dissipation against every rating, and
+//! cautions. It is `no_std` (with `alloc`) so the same code runs natively,
+//! in CI and in the browser.
+//!
+//! ## The model and its limits
+//! - **Device**: Ebers–Moll transport equations with the Early effect, both
+//!   junctions free (so saturation and cutoff are solved, not assumed); IS
+//!   and βF follow temperature by the Gummel–Poon laws (EG = 1.11 eV,
+//!   XTI = 3, XTB). IS comes from the datasheet VBE at a stated current.
+//!   Not modelled: high-injection β fall-off (the knee current), base-width
+//!   modulation beyond first order, leakage, breakdown, self-heating feedback
+//!   into the bias, and the fall of fT at low current. See [`TransistorData`].
+//! - **DC**: a damped Newton solve of the two loop equations ([`OperatingPoint`]).
+//! - **Small signal**: hybrid-π from the exact derivatives of the model at the
+//!   bias point; Cπ from fT, Cμ from Cob ([`SmallSignal`]).
+//! - **AC**: complex nodal analysis of the whole network ([`AcNetwork`]);
+//!   the closed-form textbook results are kept beside it as a check ([`Midband`]).
+//! - **Large signal**: piecewise-linear DC and AC load lines ([`Swing`]).
+//! - **Ratings**: quiescent dissipation, linear Ptot derating ([`Dissipation`]).
+//!
+//! ## Units
+//! SI base units everywhere inside: volts, amperes, ohms, farads, hertz,
+//! watts, kelvin per watt. Temperatures are [`Temperature`] values (absolute);
+//! a temperature *difference* is a plain `f64` in kelvin. Prefixes appear only
+//! at the edges: [`parse_value`] reads `4k7`, [`format_si`] writes `4.7 kΩ`.
+//!
+//! ## Definitions used throughout
+//! - **Input terminal**: the source side of the input coupling capacitor, after Rs.
+//! - **Voltage gain**: V(load) / V(input terminal).
+//! - **Voltage gain from source**: V(load) / EMF.
+//! - **Current gain**: I(load) / I(into the input terminal).
+//! - **Power gain**: the product of voltage and current gain, in dB (10·log10).
+//! - **Input impedance**: seen at the input terminal with the load connected.
+//! - **Output impedance**: seen by the load, with the EMF zeroed and Rs kept.
+//! - **Midband**: coupling and bypass capacitors shorted, device capacitances open.
+//! - **Lower and upper corner**: where |V(load)/EMF| is 3 dB below midband.
+//! - **Swing**: peak volts at the load before clipping, as magnitudes.
+//! - **Polarity**: a PNP stage is the mirror image of the NPN stage on a
+//!   positive supply: its emitter resistance and collector resistor swap rails.
+//!   Its VCE and VBE are reported negative; currents are reported positive in
+//!   the direction of normal operation.
+//!
+//! ## Use
+//! ```
+//! use stagewright::{analyze, preset, Parts, Stage, StageKind, Temperature};
+//! let stage = Stage {
+//!     kind: StageKind::CommonEmitter,
+//!     supply: 12.0,
+//!     ambient: Temperature::from_celsius(25.0),
+//!     parts: Parts {
+//!         r1: Some(47e3), r2: Some(10e3), rc: 4.7e3, re: 220.0, re_bypassed: 820.0,
+//!         rs: 600.0, rl: 10e3, c_in: Some(1e-6), c_out: Some(1e-6), c_emitter: Some(47e-6),
+//!         ..Parts::default()
+//!     },
+//!     transistor: preset("general-purpose-npn").unwrap(),
+//! };
+//! let a = analyze(&stage).unwrap();
+//! assert!(a.midband.voltage_gain < -10.0);
+//! ```
+
+#![no_std]
+#![forbid(unsafe_code)]
+#![deny(missing_docs)]
+
+extern crate alloc;
+#[cfg(any(test, feature = "std"))]
+extern crate std;
+
+mod analysis;
+mod constants;
+mod error;
+mod eseries;
+mod format;
+mod hybrid_pi;
+mod midband;
+mod nodal;
+mod operating_point;
+mod presets;
+mod ratings;
+mod requirements;
+mod response;
+mod stage;
+mod swing;
+mod transistor;
+mod value;
+
+pub use analysis::{analyze, analyze_with, Analysis, Options};
+pub use constants::{
+    thermal_voltage, Temperature, BOLTZMANN, DATASHEET_TEMPERATURE, ELEMENTARY_CHARGE, ZERO_CELSIUS,
+};
+pub use error::{Error, ErrorKind, Result};
+pub use eseries::{ESeries, SeriesLookup};
+pub use format::{format_si, format_value};
+pub use hybrid_pi::{SmallSignal, OPEN_RESISTANCE};
+pub use midband::Midband;
+pub use nodal::{db10, db20, AcNetwork, Band, FrequencyPoint};
+pub use operating_point::{OperatingPoint, Region};
+pub use presets::{preset, Preset, PRESETS};
+pub use ratings::{
+    BiasStability, Caution, Check, Dissipation, BIAS_STABILITY_LIMIT, DEFERRAL, ES1_DC_LIMIT,
+    HOT_SURFACE_CELSIUS, RATING_MARGIN, RESISTOR_DERATING,
+};
+pub use requirements::Requirements;
+pub use response::{log_frequencies, Bandwidth, Response, SEARCH_FROM, SEARCH_TO};
+pub use stage::{Parts, Stage, StageKind, DEFAULT_RESISTOR_RATING, MAX_SUPPLY};
+pub use swing::Swing;
+pub use transistor::{
+    Currents, Device, Polarity, TransistorData, CJC_BUILT_IN, CJC_GRADING, DEFAULT_BETA_REVERSE,
+    DEFAULT_XTB, SILICON_EG, SILICON_XTI, TEST_VCE,
+};
+pub use value::{parse_value, parse_value_field};

@@ -1,0 +1,242 @@
+//! Frequency response: sweeps, the −3 dB corners and the unity-gain frequencies.
+//!
+//! Corners are found on the exact nodal response ([`crate::AcNetwork`]), not
+//! from time-constant estimates: a coarse logarithmic scan from 1 mHz to
+//! 1 THz (four points a decade) brackets each crossing, then the Illinois
+//! variant of regula falsi on (ln f, ln|H|) refines it to a relative error
+//! below 10⁻⁹.
+//!
+//! - Lower and upper corner: where |V(load)/EMF| is 3 dB (a factor 1/√2)
+//!   below its midband value, searching down and up from the frequency of
+//!   largest gain. `None` when the response does not fall that far inside the
+//!   scanned range (for example every coupling capacitor ideal).
+//! - Unity current gain and unity power gain: the lowest frequency above
+//!   the peak of |Ai| (resp. |Av·Ai|) where it falls to 1. `None` when it
+//!   never exceeds 1.
+
+use alloc::vec::Vec;
+
+use crate::error::{within, Result};
+use crate::hybrid_pi::SmallSignal;
+use crate::nodal::{AcNetwork, Band, FrequencyPoint};
+use crate::stage::Stage;
+
+/// Lowest frequency of the corner search, Hz.
+pub const SEARCH_FROM: f64 = 1e-3;
+/// Highest frequency of the corner search, Hz.
+pub const SEARCH_TO: f64 = 1e12;
+/// Grid points per decade of the corner search.
+const SEARCH_PER_DECADE: usize = 4;
+
+/// Most points in one sweep.
+pub const MAX_SWEEP_POINTS: usize = 100_000;
+
+/// The band limits of a stage, Hz.
+#[derive(Debug, Clone, Copy, PartialEq, Default)]
+pub struct Bandwidth {
+    /// Lower −3 dB frequency of the gain from the source.
+    pub f_low: Option<f64>,
+    /// Upper −3 dB frequency of the gain from the source.
+    pub f_high: Option<f64>,
+    /// Frequency above midband where |current gain| falls to 1.
+    pub f_unity_current_gain: Option<f64>,
+    /// Frequency above midband where |power gain| falls to 1.
+    pub f_unity_power_gain: Option<f64>,
+}
+
+/// The small-signal response of a stage at one operating point.
+#[derive(Debug, Clone)]
+pub struct Response {
+    full: AcNetwork,
+    midband: FrequencyPoint,
+}
+
+/// `points` frequencies spaced evenly on a log scale from `from` to `to` Hz
+/// (inclusive). Errors name `from`, `to` or `points`.
+pub fn log_frequencies(from: f64, to: f64, points: usize) -> Result<Vec<f64>> {
+    within("from", from, 1e-6, 1e13, "Hz")?;
+    within("to", to, 1e-6, 1e13, "Hz")?;
+    if to <= from {
+        return Err(crate::Error::out_of_range(
+            "to",
+            to,
+            "Hz",
+            alloc::format!("above from ({})", crate::format_si(from, "Hz")),
+        ));
+    }
+    within("points", points as f64, 2.0, MAX_SWEEP_POINTS as f64, "")?;
+    let (l0, l1) = (libm::log10(from), libm::log10(to));
+    let step = (l1 - l0) / (points - 1) as f64;
+    Ok((0..points)
+        .map(|k| {
+            if k + 1 == points {
+                to
+            } else {
+                libm::pow(10.0, l0 + step * k as f64)
+            }
+        })
+        .collect())
+}
+
+/// Which quantity a crossing search follows.
+#[derive(Clone, Copy)]
+enum Track {
+    GainFromSource,
+    CurrentGain,
+    PowerGain,
+}
+
+fn magnitude(p: &FrequencyPoint, t: Track) -> f64 {
+    match t {
+        Track::GainFromSource => p.voltage_gain_from_source.norm(),
+        Track::CurrentGain => p.current_gain.norm(),
+        Track::PowerGain => (p.voltage_gain * p.current_gain).norm(),
+    }
+}
+
+fn ln_safe(x: f64) -> f64 {
+    libm::log(x.max(1e-300))
+}
+
+impl Response {
+    /// Assembles the full and midband networks of `stage` at `ss`.
+    pub fn new(stage: &Stage, ss: &SmallSignal) -> Result<Response> {
+        let full = AcNetwork::new(stage, ss, Band::Full)?;
+        let midband = AcNetwork::new(stage, ss, Band::Midband)?.solve(0.0)?;
+        Ok(Response { full, midband })
+    }
+
+    /// The midband response (frequency field 0): coupling and bypass
+    /// capacitors shorted, device capacitances open.
+    pub fn midband(&self) -> &FrequencyPoint {
+        &self.midband
+    }
+
+    /// The response at `frequency` Hz.
+    pub fn at(&self, frequency: f64) -> Result<FrequencyPoint> {
+        self.full.solve(frequency)
+    }
+
+    /// The response at `points` log-spaced frequencies from `from` to `to` Hz.
+    pub fn sweep(&self, from: f64, to: f64, points: usize) -> Result<Vec<FrequencyPoint>> {
+        log_frequencies(from, to, points)?
+            .into_iter()
+            .map(|f| self.full.solve(f))
+            .collect()
+    }
+
+    /// Finds where ln|H| − `level` changes sign between grid frequencies
+    /// `fa` (value `ga`) and `fb` (value `gb`), by Illinois regula falsi on ln f.
+    fn refine(&self, t: Track, level: f64, fa: f64, ga: f64, fb: f64, gb: f64) -> Result<f64> {
+        let (mut xa, mut ya, mut xb, mut yb) = (libm::log(fa), ga, libm::log(fb), gb);
+        let mut side = 0i8;
+        for _ in 0..60 {
+            let x = if (yb - ya).abs() > 0.0 {
+                xb - yb * (xb - xa) / (yb - ya)
+            } else {
+                0.5 * (xa + xb)
+            };
+            let x = if x > xa.min(xb) && x < xa.max(xb) {
+                x
+            } else {
+                0.5 * (xa + xb)
+            };
+            let y = ln_safe(magnitude(&self.full.solve(libm::exp(x))?, t)) - level;
+            if y == 0.0 || (xb - xa).abs() < 1e-10 {
+                return Ok(libm::exp(x));
+            }
+            if (y > 0.0) == (yb > 0.0) {
+                xb = x;
+                yb = y;
+                if side == 1 {
+                    ya *= 0.5;
+                }
+                side = 1;
+            } else {
+                xa = x;
+                ya = y;
+                if side == -1 {
+                    yb *= 0.5;
+                }
+                side = -1;
+            }
+        }
+        Ok(libm::exp(0.5 * (xa + xb)))
+    }
+
+    /// The corners and unity-gain frequencies.
+    pub fn bandwidth(&self) -> Result<Bandwidth> {
+        let decades = libm::log10(SEARCH_TO / SEARCH_FROM);
+        let n = (decades as usize) * SEARCH_PER_DECADE + 1;
+        let mut grid: Vec<FrequencyPoint> = Vec::with_capacity(n);
+        for k in 0..n {
+            let f = SEARCH_FROM * libm::pow(10.0, k as f64 / SEARCH_PER_DECADE as f64);
+            grid.push(self.full.solve(f)?);
+        }
+        let mut out = Bandwidth::default();
+        // Corners of the gain from the source, relative to midband.
+        let mid = self.midband.voltage_gain_from_source.norm();
+        if mid > 1e-30 {
+            let level = ln_safe(mid / core::f64::consts::SQRT_2);
+            let t = Track::GainFromSource;
+            let g: Vec<f64> = grid
+                .iter()
+                .map(|p| ln_safe(magnitude(p, t)) - level)
+                .collect();
+            let peak = argmax(&g);
+            if g[peak] > 0.0 {
+                if let Some(k) = (0..peak).rev().find(|&k| g[k] <= 0.0) {
+                    out.f_low = Some(self.refine(
+                        t,
+                        level,
+                        grid[k].frequency,
+                        g[k],
+                        grid[k + 1].frequency,
+                        g[k + 1],
+                    )?);
+                }
+                if let Some(k) = (peak + 1..n).find(|&k| g[k] <= 0.0) {
+                    out.f_high = Some(self.refine(
+                        t,
+                        level,
+                        grid[k - 1].frequency,
+                        g[k - 1],
+                        grid[k].frequency,
+                        g[k],
+                    )?);
+                }
+            }
+        }
+        for t in [Track::CurrentGain, Track::PowerGain] {
+            let g: Vec<f64> = grid.iter().map(|p| ln_safe(magnitude(p, t))).collect();
+            let peak = argmax(&g);
+            if g[peak] > 0.0 {
+                if let Some(k) = (peak + 1..n).find(|&k| g[k] <= 0.0) {
+                    let f = self.refine(
+                        t,
+                        0.0,
+                        grid[k - 1].frequency,
+                        g[k - 1],
+                        grid[k].frequency,
+                        g[k],
+                    )?;
+                    match t {
+                        Track::CurrentGain => out.f_unity_current_gain = Some(f),
+                        _ => out.f_unity_power_gain = Some(f),
+                    }
+                }
+            }
+        }
+        Ok(out)
+    }
+}
+
+fn argmax(v: &[f64]) -> usize {
+    let mut best = 0;
+    for (i, &x) in v.iter().enumerate() {
+        if x > v[best] {
+            best = i;
+        }
+    }
+    best
+}

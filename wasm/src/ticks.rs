@@ -1,0 +1,220 @@
+//! Axis ticks: where they go and how they read.
+//!
+//! Tick labels use engineering notation with SI prefixes and at most three
+//! significant digits (`10 Hz`, `1 kHz`, `2.5 mA`, `100 MHz`), never
+//! `100000.0`.
+
+/// SI prefixes from 10⁻¹⁵ to 10¹², in steps of 10³.
+const PREFIXES: [(i32, &str); 10] = [
+    (-15, "f"),
+    (-12, "p"),
+    (-9, "n"),
+    (-6, "µ"),
+    (-3, "m"),
+    (0, ""),
+    (3, "k"),
+    (6, "M"),
+    (9, "G"),
+    (12, "T"),
+];
+
+/// A short tick label: `value` with an SI prefix and `unit`, three
+/// significant digits at most, trailing zeros dropped.
+///
+/// An empty `unit` still gets a prefix (`10k`); the unit `"dB"` and `"°"`
+/// never do (`-20 dB`, `-90°`).
+pub(crate) fn eng_label(value: f64, unit: &str) -> String {
+    if !value.is_finite() {
+        return String::new();
+    }
+    let no_prefix = matches!(unit, "dB" | "°" | "%" | "°C");
+    let sep = if unit.is_empty() || unit == "°" || unit == "%" {
+        ""
+    } else {
+        " "
+    };
+    // Values this close to zero are rounding noise from tick arithmetic.
+    if value.abs() < 1e-18 {
+        return format!("0{sep}{unit}");
+    }
+    let (mant, prefix) = if no_prefix {
+        (value, "")
+    } else {
+        split_prefix(value)
+    };
+    format!("{}{sep}{prefix}{unit}", short_number(mant))
+}
+
+/// Splits `value` into a mantissa in [1, 1000) and its SI prefix.
+fn split_prefix(value: f64) -> (f64, &'static str) {
+    let exp3 = ((value.abs().log10() / 3.0).floor() as i32 * 3).clamp(-15, 12);
+    let mut mant = value / 10f64.powi(exp3);
+    let mut exp = exp3;
+    // Rounding to three digits can carry into the next prefix (999.7 → 1000).
+    if round_sig(mant.abs(), 3) >= 1000.0 && exp < 12 {
+        exp += 3;
+        mant /= 1000.0;
+    }
+    let prefix = PREFIXES
+        .iter()
+        .find(|(e, _)| *e == exp)
+        .map_or("", |(_, p)| p);
+    (mant, prefix)
+}
+
+/// Rounds `x` to `digits` significant digits.
+fn round_sig(x: f64, digits: i32) -> f64 {
+    if x == 0.0 || !x.is_finite() {
+        return x;
+    }
+    let mag = x.abs().log10().floor() as i32;
+    let scale = 10f64.powi(digits - 1 - mag);
+    (x * scale).round() / scale
+}
+
+/// `x` with at most three significant digits (at least the integer part),
+/// trailing zeros and a trailing point removed, and a real minus sign.
+fn short_number(x: f64) -> String {
+    let r = round_sig(x, 3);
+    let mag = if r == 0.0 {
+        0
+    } else {
+        r.abs().log10().floor() as i32
+    };
+    let decimals = (2 - mag).clamp(0, 6) as usize;
+    let mut s = format!("{r:.decimals$}");
+    if s.contains('.') {
+        while s.ends_with('0') {
+            s.pop();
+        }
+        if s.ends_with('.') {
+            s.pop();
+        }
+    }
+    if s == "-0" {
+        s = "0".into();
+    }
+    s.replace('-', "\u{2212}")
+}
+
+/// Tick positions on a logarithmic axis from `lo` to `hi` (both > 0).
+///
+/// Returns the labelled ticks (whole decades, thinned to at most
+/// `max_labels`; 1-2-5 steps when the range is under two decades) and the
+/// light grid lines (2…9 × each decade).
+pub(crate) fn log_ticks(lo: f64, hi: f64, max_labels: usize) -> (Vec<f64>, Vec<f64>) {
+    let eps = 1e-9;
+    let inside = |v: f64| v >= lo * (1.0 - eps) && v <= hi * (1.0 + eps);
+    let d0 = lo.log10().floor() as i32;
+    let d1 = hi.log10().ceil() as i32;
+    let decades: Vec<f64> = (d0..=d1)
+        .map(|d| 10f64.powi(d))
+        .filter(|v| inside(*v))
+        .collect();
+    let mut light = Vec::new();
+    for d in d0..=d1 {
+        for m in 2..=9 {
+            let v = f64::from(m) * 10f64.powi(d);
+            if inside(v) {
+                light.push(v);
+            }
+        }
+    }
+    let bold = if decades.len() >= 2 {
+        let step = decades.len().div_ceil(max_labels.max(2));
+        decades.into_iter().step_by(step.max(1)).collect()
+    } else {
+        let mut v = Vec::new();
+        for d in d0..=d1 {
+            for m in [1.0, 2.0, 5.0] {
+                let x = m * 10f64.powi(d);
+                if inside(x) {
+                    v.push(x);
+                }
+            }
+        }
+        v
+    };
+    (bold, light)
+}
+
+/// "Nice" tick positions on a linear axis covering `lo..hi`, about
+/// `target` of them, in steps of 1, 2 or 5 × 10ⁿ.
+pub(crate) fn linear_ticks(lo: f64, hi: f64, target: usize) -> Vec<f64> {
+    let span = hi - lo;
+    if span.is_nan() || span <= 0.0 || span.is_infinite() {
+        return vec![lo];
+    }
+    let step = nice_step(span / target.max(2) as f64);
+    let first = (lo / step).ceil() as i64;
+    let last = (hi / step).floor() as i64;
+    (first..=last).map(|k| k as f64 * step).collect()
+}
+
+/// The smallest 1-2-5 step not below `raw`.
+pub(crate) fn nice_step(raw: f64) -> f64 {
+    let mag = 10f64.powi(raw.log10().floor() as i32);
+    let f = raw / mag;
+    let m = if f <= 1.0 {
+        1.0
+    } else if f <= 2.0 {
+        2.0
+    } else if f <= 5.0 {
+        5.0
+    } else {
+        10.0
+    };
+    m * mag
+}
+
+/// A range that covers `lo..hi` with a little room, widened to whole
+/// `step`s so ticks fall on the frame. A zero-width range is opened up.
+pub(crate) fn padded_range(lo: f64, hi: f64, min_span: f64) -> (f64, f64) {
+    let (mut lo, mut hi) = (lo, hi);
+    if hi - lo < min_span {
+        let mid = 0.5 * (lo + hi);
+        lo = mid - 0.5 * min_span;
+        hi = mid + 0.5 * min_span;
+    }
+    let step = nice_step((hi - lo) / 5.0);
+    ((lo / step).floor() * step, (hi / step).ceil() * step)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn labels_read_like_an_engineer_writes() {
+        assert_eq!(eng_label(10.0, "Hz"), "10 Hz");
+        assert_eq!(eng_label(1000.0, "Hz"), "1 kHz");
+        assert_eq!(eng_label(100e6, "Hz"), "100 MHz");
+        assert_eq!(eng_label(0.0025, "A"), "2.5 mA");
+        assert_eq!(eng_label(999.96, "Hz"), "1 kHz");
+        assert_eq!(eng_label(-20.0, "dB"), "\u{2212}20 dB");
+        assert_eq!(eng_label(0.0, "V"), "0 V");
+        assert_eq!(eng_label(4700.0, "Ω"), "4.7 kΩ");
+        assert_eq!(eng_label(-90.0, "°"), "\u{2212}90°");
+    }
+
+    #[test]
+    fn log_ticks_are_decades() {
+        let (bold, light) = log_ticks(10.0, 1e8, 10);
+        assert_eq!(bold.len(), 8);
+        assert!((bold[0] - 10.0).abs() < 1e-9);
+        assert!(light.contains(&20.0));
+        let (bold, _) = log_ticks(10.0, 1e8, 4);
+        assert!(bold.len() <= 4);
+        let (bold, _) = log_ticks(30.0, 250.0, 8);
+        assert_eq!(bold, vec![50.0, 100.0, 200.0]);
+    }
+
+    #[test]
+    fn linear_ticks_are_round() {
+        assert_eq!(
+            linear_ticks(0.0, 10.0, 5),
+            vec![0.0, 2.0, 4.0, 6.0, 8.0, 10.0]
+        );
+        assert_eq!(padded_range(0.3, 9.2, 1.0), (0.0, 10.0));
+    }
+}
