@@ -356,23 +356,18 @@ impl AcNetwork {
     pub fn solve(&self, frequency: f64) -> Result<FrequencyPoint> {
         let w = 2.0 * core::f64::consts::PI * frequency.max(0.0);
         let size = self.n + 1;
-        let mut y = [[Complex64::new(0.0, 0.0); M]; M];
-        for (i, row) in y.iter_mut().enumerate().take(size) {
-            for (j, v) in row.iter_mut().enumerate().take(size) {
-                *v = Complex64::new(self.g[i][j], w * self.cm[i][j]);
-            }
-        }
+        let y = |i: usize, j: usize| Complex64::new(self.g[i][j], w * self.cm[i][j]);
         let n = self.n;
         // Reduced system over the unknowns 1..=n.
         let mut a = [[Complex64::new(0.0, 0.0); M]; M];
         let mut rhs_gain = [Complex64::new(0.0, 0.0); M];
         let mut rhs_z = [Complex64::new(0.0, 0.0); M];
-        for i in 0..n {
-            for j in 0..n {
-                a[i][j] = y[i + 1][j + 1];
+        for (i, row) in a.iter_mut().enumerate().take(n) {
+            for (j, v) in row.iter_mut().enumerate().take(n) {
+                *v = y(i + 1, j + 1);
             }
             // formula: Y_uu·V_u = −Y_us·V_s with V_s = 1 V
-            rhs_gain[i] = -y[i + 1][0];
+            rhs_gain[i] = -y(i + 1, 0);
         }
         if self.output > 0 {
             rhs_z[self.output - 1] = Complex64::new(1.0, 0.0);
@@ -391,8 +386,8 @@ impl AcNetwork {
         v[1..=n].copy_from_slice(&rhs_gain[..n]);
         // Current delivered by the EMF into the network: its node's row of Y times V.
         let mut i_in = Complex64::new(0.0, 0.0);
-        for (yj, vj) in y[0].iter().zip(v.iter()).take(size) {
-            i_in += yj * vj;
+        for (j, vj) in v.iter().enumerate().take(size) {
+            i_in += y(0, j) * vj;
         }
         let v_in = v[self.input];
         let v_out = v[self.output];
