@@ -74,6 +74,8 @@ extern crate std;
 
 mod analysis;
 mod constants;
+#[cfg(feature = "serde")]
+mod design_file;
 mod error;
 mod eseries;
 mod format;
@@ -83,6 +85,8 @@ mod nodal;
 mod operating_point;
 mod presets;
 mod ratings;
+#[cfg(feature = "serde")]
+mod report;
 mod requirements;
 mod response;
 mod stage;
@@ -93,6 +97,11 @@ mod value;
 pub use analysis::{analyze, analyze_with, Analysis, Options};
 pub use constants::{
     thermal_voltage, Temperature, BOLTZMANN, DATASHEET_TEMPERATURE, ELEMENTARY_CHARGE, ZERO_CELSIUS,
+};
+#[cfg(feature = "serde")]
+pub use design_file::{
+    Design, DesignDocument, PartsDocument, RequirementsDocument, TransistorDocument, Typed,
+    DEFAULT_AMBIENT_CELSIUS, DESIGN_FORMAT, DESIGN_FORMATS,
 };
 pub use error::{Error, ErrorKind, Result};
 pub use eseries::{ESeries, SeriesLookup};
@@ -106,6 +115,8 @@ pub use ratings::{
     BiasStability, Caution, Check, Dissipation, BIAS_STABILITY_LIMIT, DEFERRAL, ES1_DC_LIMIT,
     HOT_SURFACE_CELSIUS, RATING_MARGIN, RESISTOR_DERATING,
 };
+#[cfg(feature = "serde")]
+pub use report::{Report, SweepRow, SweepTable, REPORT_FORMAT, SWEEP_FORMAT};
 pub use requirements::Requirements;
 pub use response::{log_frequencies, Bandwidth, Response, SEARCH_FROM, SEARCH_TO};
 pub use stage::{Parts, Stage, StageKind, DEFAULT_RESISTOR_RATING, MAX_SUPPLY};

@@ -1,0 +1,74 @@
+//! Benchmarks of the analysis engine.
+//!
+//! Three measurements of one common-emitter stage (the crate docs' example
+//! stage: 12 V, 47 k / 10 k divider, 4.7 k collector, 220 Ω + 820 Ω emitter,
+//! every capacitor finite, so the sweep has real corners to resolve):
+//!
+//! - `analyze_and_sweep`: what a page does on every edit, `analyze` (DC solve,
+//!   small signal, midband, corner search, stability re-solves, ratings) and
+//!   then a 200-point sweep from 10 Hz to 1 GHz for the plot;
+//! - `analyze`: the analysis alone;
+//! - `sweep_200`: the 200-point sweep alone, on an analysis made once.
+//!
+//! Run: `cargo bench -p stagewright --bench analysis -- --warm-up-time 1 --measurement-time 3`
+
+use std::hint::black_box;
+
+use criterion::{criterion_group, criterion_main, Criterion};
+use stagewright::{analyze, preset, Parts, Stage, StageKind, Temperature};
+
+/// The stage of the crate documentation's example.
+fn example_stage() -> Stage {
+    Stage {
+        kind: StageKind::CommonEmitter,
+        supply: 12.0,
+        ambient: Temperature::from_celsius(25.0),
+        parts: Parts {
+            r1: Some(47e3),
+            r2: Some(10e3),
+            rc: 4.7e3,
+            re: 220.0,
+            re_bypassed: 820.0,
+            rs: 600.0,
+            rl: 10e3,
+            c_in: Some(1e-6),
+            c_out: Some(1e-6),
+            c_emitter: Some(47e-6),
+            ..Parts::default()
+        },
+        transistor: preset("general-purpose-npn").expect("the preset exists"),
+    }
+}
+
+fn benches(c: &mut Criterion) {
+    let stage = example_stage();
+    c.bench_function("analyze_and_sweep", |b| {
+        b.iter(|| {
+            let a = analyze(black_box(&stage)).expect("the example stage analyses");
+            let sweep = a
+                .response()
+                .sweep(10.0, 1e9, 200)
+                .expect("a valid sweep range");
+            black_box((a.midband.voltage_gain, sweep.len()))
+        })
+    });
+    c.bench_function("analyze", |b| {
+        b.iter(|| {
+            let a = analyze(black_box(&stage)).expect("the example stage analyses");
+            black_box(a.midband.voltage_gain)
+        })
+    });
+    let analysis = analyze(&stage).expect("the example stage analyses");
+    c.bench_function("sweep_200", |b| {
+        b.iter(|| {
+            let sweep = analysis
+                .response()
+                .sweep(black_box(10.0), black_box(1e9), 200)
+                .expect("a valid sweep range");
+            black_box(sweep.len())
+        })
+    });
+}
+
+criterion_group!(analysis, benches);
+criterion_main!(analysis);

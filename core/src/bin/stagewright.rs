@@ -1,0 +1,494 @@
+//! `stagewright`: analyse, check and sweep design files of one-transistor
+//! amplifier stages, and look up standard part values.
+//!
+//! Exit status: 0 when every check passes, 1 when a requirement or rating
+//! fails, 2 when a file is invalid or the command line is wrong.
+
+use std::io::{self, Read, Write};
+use std::process::ExitCode;
+
+use clap::{Parser, Subcommand};
+use serde_json::json;
+use stagewright::{format_si, parse_value, Design, ESeries, Error, Report, SweepTable, PRESETS};
+
+const ABOUT: &str = "Analyse and check design files of discrete one-transistor amplifier stages.";
+
+const LONG_ABOUT: &str = "\
+Analyse and check design files of discrete one-transistor amplifier stages
+(common emitter, common collector, common base; NPN or PNP).
+
+A design file is a JSON document: the stage, its supply, its transistor
+(a preset and/or datasheet values), its parts and the requirements it must
+meet. Values are numbers in SI base units or strings such as \"4k7\",
+\"100 nF\" or \"1.2 MHz\". The ratings of the transistor and resistors are
+always checked; the requirements are checked when given.";
+
+const AFTER_LONG_HELP: &str = "\
+A minimal design file:
+
+  {
+    \"format\": \"stagewright/1\",
+    \"title\": \"gain stage\",
+    \"stage\": \"common-emitter\",
+    \"supply\": 12,
+    \"transistor\": { \"preset\": \"general-purpose-npn\" },
+    \"parts\": { \"r1\": \"47k\", \"r2\": \"10k\", \"rc\": \"4k7\", \"re\": \"1k\",
+               \"rl\": \"10k\", \"c_in\": \"1u\", \"c_out\": \"1u\" },
+    \"requirements\": { \"min_voltage_gain_db\": 8, \"max_f_low\": 100 }
+  }
+
+Examples:
+  stagewright analyze design.json          readable report
+  stagewright analyze design.json --json   the report as JSON
+  stagewright check designs/*.json         for CI: one line per file
+  stagewright sweep design.json --from 10 --to 1G --points 200 --csv
+  stagewright values 4k7 --series E24
+  stagewright presets
+
+Exit status: 0 every check passes, 1 a requirement or rating fails,
+2 a file is invalid (or the command line is wrong).
+
+Every key of the design file and of the report is described in the README.";
+
+#[derive(Parser)]
+#[command(
+    name = "stagewright",
+    version,
+    about = ABOUT,
+    long_about = LONG_ABOUT,
+    after_long_help = AFTER_LONG_HELP,
+    propagate_version = true
+)]
+struct Cli {
+    #[command(subcommand)]
+    command: Command,
+}
+
+#[derive(Subcommand)]
+enum Command {
+    /// Analyse one design file and print its report.
+    ///
+    /// The readable report shows the operating point, small-signal model,
+    /// midband gains and impedances, corners, swing, dissipation, every
+    /// check with pass or FAIL, and the cautions. Exit status 0 when every
+    /// check passes, 1 when one fails, 2 when the file is invalid.
+    Analyze {
+        /// The design file; `-` reads standard input.
+        file: String,
+        /// Print the report as one JSON document (stagewright-report/1).
+        #[arg(long)]
+        json: bool,
+    },
+    /// Check design files, for CI.
+    ///
+    /// Prints one line per file (pass, FAIL or invalid), then each failing
+    /// check and each error with its file and field. Exit status 0 when
+    /// every file passes, 1 when a requirement or rating fails, 2 when a
+    /// file is invalid.
+    Check {
+        /// The design files; `-` reads standard input.
+        #[arg(required = true)]
+        files: Vec<String>,
+        /// Print the result as one JSON document (stagewright-check/1).
+        #[arg(long)]
+        json: bool,
+    },
+    /// Print the frequency response of a design as a table.
+    ///
+    /// Columns: frequency, voltage gain and its phase, gain from the
+    /// source, current gain, power gain, |Zin| and |Zout|. Frequencies are
+    /// spaced evenly on a log scale, both ends included.
+    Sweep {
+        /// The design file; `-` reads standard input.
+        file: String,
+        /// Lowest frequency, e.g. 10, 1k, "20 Hz".
+        #[arg(long, default_value = "10", allow_hyphen_values = true)]
+        from: String,
+        /// Highest frequency, e.g. 100k, 1G.
+        #[arg(long, default_value = "1G", allow_hyphen_values = true)]
+        to: String,
+        /// Number of frequencies (2 to 100000).
+        #[arg(long, default_value_t = 200)]
+        points: usize,
+        /// Print CSV (numbers in SI base units, gains in dB).
+        #[arg(long, conflicts_with = "json")]
+        csv: bool,
+        /// Print JSON (stagewright-sweep/1).
+        #[arg(long)]
+        json: bool,
+    },
+    /// Find the nearest standard values (IEC 60063 E series) to a value.
+    ///
+    /// Prints the nearest value, the standard values just below and above,
+    /// the error of the nearest one and the tolerance of the series. Without
+    /// --series every series is shown.
+    Values {
+        /// The value, e.g. 4k7, 5.1k, "100 nF", 33u.
+        #[arg(allow_hyphen_values = true)]
+        value: String,
+        /// One series: E3, E6, E12, E24, E48, E96 or E192.
+        #[arg(long)]
+        series: Option<String>,
+    },
+    /// List the transistor presets a design file can name.
+    Presets,
+}
+
+/// Exit status: every check passes.
+const PASS: u8 = 0;
+/// Exit status: a requirement or rating fails.
+const FAIL: u8 = 1;
+/// Exit status: a file is invalid, or the command line is wrong.
+const INVALID: u8 = 2;
+
+fn main() -> ExitCode {
+    let cli = Cli::parse();
+    let code = match cli.command {
+        Command::Analyze { file, json } => analyze(&file, json),
+        Command::Check { files, json } => check(&files, json),
+        Command::Sweep {
+            file,
+            from,
+            to,
+            points,
+            csv,
+            json,
+        } => sweep(&file, &from, &to, points, csv, json),
+        Command::Values { value, series } => values(&value, series.as_deref()),
+        Command::Presets => presets(),
+    };
+    ExitCode::from(code)
+}
+
+/// Writes to standard output; a closed pipe (`| head`) is not an error.
+fn out(text: &str) {
+    let _ = io::stdout().write_all(text.as_bytes());
+}
+
+/// How a file is named in messages.
+fn shown_name(file: &str) -> &str {
+    if file == "-" {
+        "standard input"
+    } else {
+        file
+    }
+}
+
+/// Why a design could not be used.
+enum Problem {
+    /// The file could not be read at all.
+    Io(String),
+    /// The design is invalid or cannot be solved.
+    Design(Error),
+}
+
+impl Problem {
+    fn field(&self) -> &str {
+        match self {
+            Problem::Io(_) => "",
+            Problem::Design(e) => e.field(),
+        }
+    }
+
+    fn message(&self) -> String {
+        match self {
+            Problem::Io(m) => m.clone(),
+            Problem::Design(e) => e.to_string(),
+        }
+    }
+}
+
+fn read_text(file: &str) -> Result<String, Problem> {
+    if file == "-" {
+        let mut text = String::new();
+        io::stdin()
+            .read_to_string(&mut text)
+            .map_err(|e| Problem::Io(format!("cannot read standard input: {e}")))?;
+        Ok(text)
+    } else {
+        std::fs::read_to_string(file).map_err(|e| {
+            Problem::Io(format!(
+                "cannot read the file: {e}; check the path (use - for standard input)"
+            ))
+        })
+    }
+}
+
+/// Reads, validates and analyses one design file.
+fn load(file: &str) -> Result<(Design, stagewright::Analysis), Problem> {
+    let text = read_text(file)?;
+    let design = Design::from_json(&text).map_err(Problem::Design)?;
+    let analysis = design.analyze().map_err(Problem::Design)?;
+    Ok((design, analysis))
+}
+
+fn report_problem(file: &str, p: &Problem) -> u8 {
+    eprintln!("error: {}: {}", shown_name(file), p.message());
+    INVALID
+}
+
+fn analyze(file: &str, json: bool) -> u8 {
+    let (design, analysis) = match load(file) {
+        Ok(x) => x,
+        Err(p) => return report_problem(file, &p),
+    };
+    let report = Report::new(&design, &analysis);
+    if json {
+        out(&report.to_json_string());
+    } else {
+        out(&format!("{}\n", shown_name(file)));
+        out(&report.to_text());
+    }
+    if report.passed() {
+        PASS
+    } else {
+        FAIL
+    }
+}
+
+fn check(files: &[String], json: bool) -> u8 {
+    let results: Vec<(&str, Result<Report, Problem>)> = files
+        .iter()
+        .map(|f| {
+            let r = load(f).map(|(d, a)| Report::new(&d, &a));
+            (f.as_str(), r)
+        })
+        .collect();
+    let invalid = results.iter().filter(|(_, r)| r.is_err()).count();
+    let failed = results
+        .iter()
+        .filter(|(_, r)| matches!(r, Ok(rep) if !rep.passed()))
+        .count();
+    let passed = results.len() - invalid - failed;
+    let code = if invalid > 0 {
+        INVALID
+    } else if failed > 0 {
+        FAIL
+    } else {
+        PASS
+    };
+    if json {
+        let entries: Vec<serde_json::Value> = results
+            .iter()
+            .map(|(f, r)| match r {
+                Ok(rep) => json!({
+                    "file": f,
+                    "status": if rep.passed() { "pass" } else { "fail" },
+                    "checks": rep.checks().len(),
+                    "failing": rep.failing_checks().map(|c| json!({
+                        "id": c.id, "value": c.value, "limit": c.limit,
+                        "unit": c.unit, "message": c.message,
+                    })).collect::<Vec<_>>(),
+                    "error": null,
+                    "report": serde_json::to_value(rep).unwrap_or(serde_json::Value::Null),
+                }),
+                Err(p) => json!({
+                    "file": f,
+                    "status": "invalid",
+                    "checks": 0,
+                    "failing": [],
+                    "error": { "field": p.field(), "message": p.message() },
+                    "report": null,
+                }),
+            })
+            .collect();
+        let doc = json!({
+            "format": "stagewright-check/1",
+            "pass": code == PASS,
+            "files": entries,
+            "counts": { "pass": passed, "fail": failed, "invalid": invalid },
+        });
+        out(&format!(
+            "{}\n",
+            serde_json::to_string_pretty(&doc).unwrap_or_default()
+        ));
+        return code;
+    }
+    let width = files
+        .iter()
+        .map(|f| shown_name(f).chars().count())
+        .max()
+        .unwrap_or(0);
+    let mut o = String::new();
+    for (f, r) in &results {
+        let (status, what) = match r {
+            Ok(rep) if rep.passed() => ("pass", format!("{} checks", rep.checks().len())),
+            Ok(rep) => (
+                "FAIL",
+                format!(
+                    "{} of {} checks fail",
+                    rep.failing_checks().count(),
+                    rep.checks().len()
+                ),
+            ),
+            Err(_) => ("invalid", "see below".to_string()),
+        };
+        o.push_str(&format!("{status:<7}  {:<width$}  {what}\n", shown_name(f)));
+    }
+    for (f, r) in &results {
+        match r {
+            Ok(rep) if !rep.passed() => {
+                o.push_str(&format!("\n{}:\n", shown_name(f)));
+                for c in rep.failing_checks() {
+                    o.push_str(&format!("  FAIL  {}: {}\n", c.id, c.message));
+                }
+            }
+            Err(p) => {
+                o.push_str(&format!("\n{}:\n  error: {}\n", shown_name(f), p.message()));
+            }
+            Ok(_) => {}
+        }
+    }
+    o.push_str(&format!(
+        "\nchecked {} file{}: {passed} pass, {failed} fail, {invalid} invalid\n",
+        results.len(),
+        if results.len() == 1 { "" } else { "s" }
+    ));
+    out(&o);
+    code
+}
+
+fn sweep(file: &str, from: &str, to: &str, points: usize, csv: bool, json: bool) -> u8 {
+    let bad_option = |e: Error| {
+        eprintln!("error: --{e}");
+        INVALID
+    };
+    let from_hz = match stagewright::parse_value_field("from", from, "Hz") {
+        Ok(v) => v,
+        Err(e) => return bad_option(e),
+    };
+    let to_hz = match stagewright::parse_value_field("to", to, "Hz") {
+        Ok(v) => v,
+        Err(e) => return bad_option(e),
+    };
+    let (_, analysis) = match load(file) {
+        Ok(x) => x,
+        Err(p) => return report_problem(file, &p),
+    };
+    let table = match SweepTable::new(&analysis, from_hz, to_hz, points) {
+        Ok(t) => t,
+        Err(e) => return bad_option(e),
+    };
+    if csv {
+        out(&table.to_csv());
+    } else if json {
+        out(&table.to_json_string());
+    } else {
+        out(&format!(
+            "{}: frequency response, {} points from {} to {} (gains in dB of their magnitude)\n",
+            shown_name(file),
+            points,
+            format_si(from_hz, "Hz"),
+            format_si(to_hz, "Hz")
+        ));
+        out(&table.to_text());
+    }
+    PASS
+}
+
+/// The unit symbol the value was typed with, if any (for display only).
+fn typed_unit(text: &str) -> &'static str {
+    let t = text.trim();
+    let lower = t.to_ascii_lowercase();
+    if t.ends_with('Ω')
+        || t.ends_with('\u{2126}')
+        || lower.ends_with("ohm")
+        || lower.ends_with("ohms")
+    {
+        "Ω"
+    } else if t.ends_with("Hz") {
+        "Hz"
+    } else if t.ends_with('F') {
+        "F"
+    } else if t.ends_with('H') {
+        "H"
+    } else if t.ends_with('V') {
+        "V"
+    } else if t.ends_with('A') {
+        "A"
+    } else if t.ends_with('W') {
+        "W"
+    } else {
+        ""
+    }
+}
+
+/// A value in engineering notation, with the unit if one is known
+/// (`4.7 kΩ`), else with the prefix alone (`4.7 k`).
+fn engineering(value: f64, unit: &str) -> String {
+    if unit.is_empty() {
+        // Format with a placeholder unit that takes prefixes, then drop it.
+        let s = format_si(value, "F");
+        s.strip_suffix('F').unwrap_or(&s).trim_end().to_string()
+    } else {
+        format_si(value, unit)
+    }
+}
+
+fn values(text: &str, series: Option<&str>) -> u8 {
+    let value = match parse_value(text) {
+        Ok(v) => v,
+        Err(e) => {
+            eprintln!("error: {e}");
+            return INVALID;
+        }
+    };
+    if !(value.is_finite() && value > 0.0) {
+        eprintln!(
+            "error: value must be greater than 0 to have standard values, got {}",
+            text.trim()
+        );
+        return INVALID;
+    }
+    let list: Vec<ESeries> = match series {
+        Some(name) => match ESeries::parse(name) {
+            Ok(s) => vec![s],
+            Err(e) => {
+                eprintln!("error: --{e}");
+                return INVALID;
+            }
+        },
+        None => ESeries::ALL.to_vec(),
+    };
+    let unit = typed_unit(text);
+    let mut o = format!(
+        "{}: nearest standard values (IEC 60063)\n",
+        engineering(value, unit)
+    );
+    o.push_str(&format!(
+        "  {:<6} {:>9}  {:>10} {:>8}  {:>10} {:>10}\n",
+        "series", "tolerance", "nearest", "error", "below", "above"
+    ));
+    for s in list {
+        let Some(l) = s.lookup(value) else {
+            eprintln!("error: value {} has no standard value", text.trim());
+            return INVALID;
+        };
+        o.push_str(&format!(
+            "  {:<6} {:>9}  {:>10} {:>8}  {:>10} {:>10}\n",
+            s.name(),
+            format!("±{} %", format_si(100.0 * s.tolerance(), "")),
+            engineering(l.nearest, unit),
+            format!("{:+.2} %", 100.0 * l.error),
+            engineering(l.below, unit),
+            engineering(l.above, unit),
+        ));
+    }
+    out(&o);
+    PASS
+}
+
+fn presets() -> u8 {
+    let width = PRESETS.iter().map(|p| p.name.len()).max().unwrap_or(0);
+    let mut o = String::from(
+        "Transistor presets (generic devices named by class; enter your own datasheet values for a real design):\n",
+    );
+    for p in PRESETS {
+        o.push_str(&format!("  {:<width$}  {}\n", p.name, p.label));
+    }
+    o.push_str(
+        "\nUse one as \"transistor\": { \"preset\": \"NAME\" } and override any value beside it.\n",
+    );
+    out(&o);
+    PASS
+}

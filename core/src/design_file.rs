@@ -1,0 +1,1461 @@
+//! The design file, format `stagewright/1`: a stage and its requirements as
+//! one JSON document, shared by the command line and the web page.
+//!
+//! # Reading: raw input, then a validated design
+//! A file is read in two steps, as typed and then checked:
+//!
+//! 1. [`DesignDocument::from_json`] reads the JSON text into a
+//!    [`DesignDocument`]: every key is looked up against the format (an
+//!    unknown key is an [`ErrorKind::UnknownKey`] error that names the
+//!    nearest known key, so a typo never drops a requirement silently), and
+//!    every value is kept *as typed*, a number or a string ([`Typed`]).
+//! 2. `Design::try_from(document)` (the one conversion, [`TryFrom`]) reads
+//!    each value in its unit with [`parse_value_field`], fills in the
+//!    preset and the defaults, and validates the whole stage
+//!    ([`Stage::validate`]). Everything after it works on checked SI values.
+//!
+//! [`Design::from_json`] does both. Every error names the key as a dotted
+//! path (`transistor.hfe_min`, `parts.rc`, `requirements.min_swing`), the
+//! value and what is allowed.
+//!
+//! # The format, version 1
+//! A JSON object. Values are numbers in SI base units (temperatures in
+//! degrees Celsius) or strings in the notation of [`parse_value_field`]:
+//! `"4k7"`, `"10u"`, `"100 nF"`, `"1.2 MHz"`, `"25 °C"`. `null` is the same
+//! as leaving the key out.
+//!
+//! | key | unit | meaning |
+//! |---|---|---|
+//! | `format` | | `"stagewright/1"`, required |
+//! | `title`, `notes` | | free text |
+//! | `stage` | | `"common-emitter"`, `"common-collector"` or `"common-base"`, required |
+//! | `supply` | V | supply voltage (positive for both polarities), required |
+//! | `ambient` | °C | ambient temperature, default 25 |
+//! | `transistor` | | the device, an object (below), required |
+//! | `parts` | | the passive parts, an object (below), required |
+//! | `requirements` | | what the design must meet, an object (below), optional |
+//!
+//! `transistor`: `preset` names a generic device ([`PRESETS`]); every other
+//! key given beside it overrides the preset's value. Without a preset every
+//! key is required except `early_voltage` (left out: no Early effect),
+//! `cob_vcb` (left out: Cμ = `cob` at every voltage) and `rbb` (left out: 0).
+//!
+//! | key | unit | meaning |
+//! |---|---|---|
+//! | `preset` | | a preset name such as `general-purpose-npn` |
+//! | `polarity` | | `"npn"` or `"pnp"` |
+//! | `hfe`, `hfe_min`, `hfe_max` | | typical, lowest and highest DC current gain |
+//! | `vbe` | V | base–emitter voltage magnitude at `vbe_at_ic`, 25 °C |
+//! | `vbe_at_ic` | A | the collector current at which `vbe` is stated |
+//! | `early_voltage` | V | Early voltage VA |
+//! | `ft` | Hz | transition frequency |
+//! | `cob` | F | output capacitance (collector–base) |
+//! | `cob_vcb` | V | collector–base voltage at which `cob` is stated |
+//! | `rbb` | Ω | base spreading resistance |
+//! | `vce_sat` | V | collector–emitter saturation voltage magnitude |
+//! | `vceo_max` | V | collector–emitter breakdown voltage, base open |
+//! | `ic_max` | A | largest continuous collector current |
+//! | `ptot_max` | W | total dissipation rating at 25 °C ambient |
+//! | `rth_ja` | K/W | thermal resistance junction to ambient |
+//! | `tj_max` | °C | largest junction temperature |
+//!
+//! `parts` (Ω, F and W; see [`Parts`] and the table of [`Stage`]):
+//!
+//! | key | unit | meaning |
+//! |---|---|---|
+//! | `r1` | Ω | supply to base |
+//! | `r2` | Ω | base to ground |
+//! | `rc` | Ω | collector resistor; required in common-emitter and common-base stages, default 0 (collector on the rail) in a follower |
+//! | `re` | Ω | unbypassed emitter resistance; required in common-collector and common-base stages, default 0 |
+//! | `re_bypassed` | Ω | emitter resistance below `re`, bypassed by `c_emitter` (common emitter only), default 0 |
+//! | `rs` | Ω | source resistance, default 0 |
+//! | `rl` | Ω | load resistance, default 1 MΩ |
+//! | `c_in`, `c_out` | F | input and output coupling capacitors |
+//! | `c_emitter` | F | emitter bypass capacitor (common emitter only) |
+//! | `c_base` | F | base bypass capacitor (common base only) |
+//! | `resistor_rating` | W | power rating of every resistor, default 0.25 |
+//!
+//! A capacitor that is left out is *ideal*: a short at every signal
+//! frequency, so it makes no corner (and a stage with every capacitor left
+//! out has no lower corner). A part that makes no sense for the stage, such
+//! as `c_base` in a common-emitter stage, is an error.
+//!
+//! `requirements` (every key optional; see [`Requirements`]):
+//!
+//! | key | unit | meaning |
+//! |---|---|---|
+//! | `min_voltage_gain_db`, `max_voltage_gain_db` | dB | bounds on the midband voltage gain magnitude, V(load)/V(input terminal) |
+//! | `min_input_impedance` | Ω | smallest midband input impedance |
+//! | `max_output_impedance` | Ω | largest midband output impedance |
+//! | `min_swing` | V | smallest symmetric peak swing at the load |
+//! | `max_f_low` | Hz | highest acceptable lower −3 dB corner (of the gain from the source) |
+//! | `min_f_high` | Hz | lowest acceptable upper −3 dB corner |
+//! | `max_supply_current` | A | largest quiescent supply current |
+//! | `max_junction_temperature` | °C | largest quiescent junction temperature |
+//!
+//! The ratings checks of the core (VCEO, IC max, Ptot, Tj max, resistor
+//! power) always run, whatever the requirements say.
+//!
+//! # Writing
+//! [`Design::to_document`] and [`Design::to_json`] write a design back as a
+//! version 1 document: numbers in SI base units, the preset kept with only
+//! the values that differ from it, defaults left out.
+
+use alloc::borrow::ToOwned;
+use alloc::string::{String, ToString};
+use alloc::vec::Vec;
+use core::fmt::Write as _;
+
+use serde::{Deserialize, Deserializer, Serialize};
+use serde_json::{Map, Value};
+
+use crate::analysis::{analyze, Analysis};
+use crate::constants::Temperature;
+use crate::error::{non_negative, positive, Error, ErrorKind, Result};
+use crate::presets::preset;
+#[cfg(doc)]
+use crate::presets::PRESETS;
+use crate::ratings::Check;
+use crate::requirements::Requirements;
+use crate::stage::{Parts, Stage, StageKind, DEFAULT_RESISTOR_RATING};
+use crate::transistor::{Polarity, TransistorData, DEFAULT_BETA_REVERSE, DEFAULT_XTB};
+use crate::value::parse_value_field;
+
+/// The format name and version this build writes: `stagewright/1`.
+pub const DESIGN_FORMAT: &str = "stagewright/1";
+
+/// Every format version this build reads.
+pub const DESIGN_FORMATS: &[&str] = &[DESIGN_FORMAT];
+
+/// Ambient temperature when the file gives none, °C.
+pub const DEFAULT_AMBIENT_CELSIUS: f64 = 25.0;
+
+/// A value as typed in a design file: a number in SI base units, or text
+/// in the notation of [`parse_value_field`] (`"4k7"`, `"100 nF"`).
+#[derive(Debug, Clone, PartialEq, Serialize)]
+#[serde(untagged)]
+pub enum Typed {
+    /// A JSON number, already in SI base units.
+    Number(f64),
+    /// A JSON string, read with its unit when the design is built.
+    Text(String),
+}
+
+impl Typed {
+    /// The value of `field` in `unit`: the number itself, or the text read
+    /// by [`parse_value_field`].
+    ///
+    /// # Errors
+    /// [`ErrorKind::Parse`] naming `field` for text that is not a value, and
+    /// [`ErrorKind::OutOfRange`] for a number that is not finite.
+    pub fn value(&self, field: &str, unit: &'static str) -> Result<f64> {
+        match self {
+            Typed::Number(x) if x.is_finite() => Ok(*x),
+            Typed::Number(x) => Err(Error::out_of_range(field, *x, unit, "a finite number")),
+            Typed::Text(text) => parse_value_field(field, text, unit),
+        }
+    }
+}
+
+impl From<f64> for Typed {
+    fn from(x: f64) -> Typed {
+        Typed::Number(x)
+    }
+}
+
+impl From<&str> for Typed {
+    fn from(text: &str) -> Typed {
+        Typed::Text(text.to_owned())
+    }
+}
+
+/// What a value that is neither a number nor a string is told.
+const EXPECTED_VALUE: &str =
+    "a number in SI base units such as 4700, or a string such as \"4k7\" or \"100 nF\"";
+/// What a text key that holds something else is told.
+const EXPECTED_TEXT: &str = "text in double quotes";
+/// What a block that is not an object is told.
+const EXPECTED_OBJECT: &str = "an object of keys and values in braces, { ... }";
+
+/// The top-level keys of version 1.
+const TOP_KEYS: &[&str] = &[
+    "format",
+    "title",
+    "notes",
+    "stage",
+    "supply",
+    "ambient",
+    "transistor",
+    "parts",
+    "requirements",
+];
+
+/// Defines a block of the document: a struct of optional text and typed
+/// values, its keys as dotted paths, and its reader.
+macro_rules! block {
+    (
+        $(#[$meta:meta])*
+        $name:ident in $prefix:literal {
+            text: [$($(#[$tm:meta])* $t:ident),* $(,)?],
+            values: [$($(#[$vm:meta])* $v:ident),* $(,)?] $(,)?
+        }
+    ) => {
+        $(#[$meta])*
+        #[derive(Debug, Clone, PartialEq, Default, Serialize)]
+        pub struct $name {
+            $(
+                $(#[$tm])*
+                #[serde(skip_serializing_if = "Option::is_none")]
+                pub $t: Option<String>,
+            )*
+            $(
+                $(#[$vm])*
+                #[serde(skip_serializing_if = "Option::is_none")]
+                pub $v: Option<Typed>,
+            )*
+        }
+
+        impl $name {
+            /// Every key of this block, as a dotted path from the top of the file.
+            pub const KEYS: &'static [&'static str] = &[
+                $(concat!($prefix, ".", stringify!($t)),)*
+                $(concat!($prefix, ".", stringify!($v)),)*
+            ];
+
+            fn read(value: &Value) -> Result<Self> {
+                let map = object(value, $prefix)?;
+                check_keys(map, $prefix)?;
+                Ok($name {
+                    $($t: text_at(map, $prefix, stringify!($t))?,)*
+                    $($v: typed_at(map, $prefix, stringify!($v))?,)*
+                })
+            }
+        }
+    };
+}
+
+block! {
+    /// The `transistor` block as typed.
+    TransistorDocument in "transistor" {
+        text: [
+            /// A preset name; the other keys override its values.
+            preset,
+            /// `"npn"` or `"pnp"`.
+            polarity,
+        ],
+        values: [
+            /// Typical DC current gain.
+            hfe,
+            /// Lowest DC current gain of the gain group.
+            hfe_min,
+            /// Highest DC current gain of the gain group.
+            hfe_max,
+            /// Base–emitter voltage magnitude at `vbe_at_ic`, V.
+            vbe,
+            /// Collector current at which `vbe` is stated, A.
+            vbe_at_ic,
+            /// Early voltage, V.
+            early_voltage,
+            /// Transition frequency, Hz.
+            ft,
+            /// Output capacitance, F.
+            cob,
+            /// Collector–base voltage at which `cob` is stated, V.
+            cob_vcb,
+            /// Base spreading resistance, Ω.
+            rbb,
+            /// Saturation voltage magnitude, V.
+            vce_sat,
+            /// Breakdown voltage VCEO, V.
+            vceo_max,
+            /// Largest continuous collector current, A.
+            ic_max,
+            /// Dissipation rating at 25 °C, W.
+            ptot_max,
+            /// Thermal resistance junction to ambient, K/W.
+            rth_ja,
+            /// Largest junction temperature, °C.
+            tj_max,
+        ],
+    }
+}
+
+block! {
+    /// The `parts` block as typed.
+    PartsDocument in "parts" {
+        text: [],
+        values: [
+            /// Supply to base, Ω.
+            r1,
+            /// Base to ground, Ω.
+            r2,
+            /// Collector resistor, Ω.
+            rc,
+            /// Unbypassed emitter resistance, Ω.
+            re,
+            /// Bypassed emitter resistance, Ω.
+            re_bypassed,
+            /// Source resistance, Ω.
+            rs,
+            /// Load resistance, Ω.
+            rl,
+            /// Input coupling capacitor, F.
+            c_in,
+            /// Output coupling capacitor, F.
+            c_out,
+            /// Emitter bypass capacitor, F.
+            c_emitter,
+            /// Base bypass capacitor, F.
+            c_base,
+            /// Power rating of every resistor, W.
+            resistor_rating,
+        ],
+    }
+}
+
+block! {
+    /// The `requirements` block as typed.
+    RequirementsDocument in "requirements" {
+        text: [],
+        values: [
+            /// Smallest |voltage gain|, dB.
+            min_voltage_gain_db,
+            /// Largest |voltage gain|, dB.
+            max_voltage_gain_db,
+            /// Smallest input impedance, Ω.
+            min_input_impedance,
+            /// Largest output impedance, Ω.
+            max_output_impedance,
+            /// Smallest symmetric peak swing at the load, V.
+            min_swing,
+            /// Highest lower corner, Hz.
+            max_f_low,
+            /// Lowest upper corner, Hz.
+            min_f_high,
+            /// Largest supply current, A.
+            max_supply_current,
+            /// Largest junction temperature, °C.
+            max_junction_temperature,
+        ],
+    }
+}
+
+/// A design file as typed: keys checked, values not yet read.
+///
+/// Build it with [`DesignDocument::from_json`] (or deserialize it with
+/// serde, which runs the same reader), turn it into a [`Design`] with
+/// `Design::try_from`, and write it with [`DesignDocument::to_json`].
+#[derive(Debug, Clone, PartialEq, Default, Serialize)]
+pub struct DesignDocument {
+    /// The format and version, `stagewright/1`.
+    pub format: String,
+    /// A title.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub title: Option<String>,
+    /// Free notes.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub notes: Option<String>,
+    /// The stage name, `common-emitter`, `common-collector` or `common-base`.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub stage: Option<String>,
+    /// Supply voltage, V.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub supply: Option<Typed>,
+    /// Ambient temperature, °C.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub ambient: Option<Typed>,
+    /// The transistor block.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub transistor: Option<TransistorDocument>,
+    /// The parts block.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub parts: Option<PartsDocument>,
+    /// The requirements block.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub requirements: Option<RequirementsDocument>,
+}
+
+impl DesignDocument {
+    /// Reads the JSON text of a design file.
+    ///
+    /// # Errors
+    /// A JSON syntax error names the line and column and quotes the line;
+    /// a wrong `format` says which versions are understood; an unknown key
+    /// names the nearest known key; a value of the wrong JSON type names
+    /// its key.
+    pub fn from_json(text: &str) -> Result<DesignDocument> {
+        if text.trim().is_empty() {
+            return Err(Error::missing(
+                "format",
+                "the file is empty; a design file is a JSON object that starts with { \"format\": \"stagewright/1\", ...",
+            ));
+        }
+        let value: Value = serde_json::from_str(text).map_err(|e| json_error(text, &e))?;
+        DesignDocument::from_value(&value)
+    }
+
+    /// Reads an already parsed JSON value; see [`DesignDocument::from_json`].
+    pub fn from_value(value: &Value) -> Result<DesignDocument> {
+        let map = object(value, "")?;
+        // The version first: a file of another version may use other keys.
+        let format = match map.get("format") {
+            None | Some(Value::Null) => {
+                return Err(Error::missing(
+                    "format",
+                    "start the file with \"format\": \"stagewright/1\"",
+                ))
+            }
+            Some(Value::String(s)) => s.clone(),
+            Some(other) => return Err(parse_error("format", other, EXPECTED_TEXT)),
+        };
+        check_format(&format)?;
+        check_keys(map, "")?;
+        let block = |key: &str| map.get(key).filter(|v| !v.is_null());
+        Ok(DesignDocument {
+            format,
+            title: text_at(map, "", "title")?,
+            notes: text_at(map, "", "notes")?,
+            stage: text_at(map, "", "stage")?,
+            supply: typed_at(map, "", "supply")?,
+            ambient: typed_at(map, "", "ambient")?,
+            transistor: block("transistor")
+                .map(TransistorDocument::read)
+                .transpose()?,
+            parts: block("parts").map(PartsDocument::read).transpose()?,
+            requirements: block("requirements")
+                .map(RequirementsDocument::read)
+                .transpose()?,
+        })
+    }
+
+    /// The document as pretty-printed JSON (two-space indent, keys in the
+    /// order of the format), ending with a newline.
+    pub fn to_json(&self) -> String {
+        let mut out = serde_json::to_string_pretty(self).unwrap_or_default();
+        out.push('\n');
+        out
+    }
+}
+
+impl<'de> Deserialize<'de> for DesignDocument {
+    /// Deserializes through [`DesignDocument::from_value`], so unknown keys
+    /// are rejected the same way.
+    fn deserialize<D: Deserializer<'de>>(deserializer: D) -> core::result::Result<Self, D::Error> {
+        let value = Value::deserialize(deserializer)?;
+        DesignDocument::from_value(&value).map_err(serde::de::Error::custom)
+    }
+}
+
+/// A validated design: the stage, its requirements, and its title and notes.
+///
+/// Every value is checked ([`Stage::validate`] passed) and in SI units.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Design {
+    /// The title (empty when none).
+    pub title: String,
+    /// Free notes (empty when none).
+    pub notes: String,
+    /// The preset the transistor started from, when one was named.
+    pub preset: Option<String>,
+    /// The stage.
+    pub stage: Stage,
+    /// What it must meet.
+    pub requirements: Requirements,
+}
+
+impl Design {
+    /// Reads and validates the JSON text of a design file: the same as
+    /// [`DesignDocument::from_json`] followed by `Design::try_from`.
+    ///
+    /// # Errors
+    /// The first problem found, naming the key as a dotted path.
+    pub fn from_json(text: &str) -> Result<Design> {
+        Design::try_from(DesignDocument::from_json(text)?)
+    }
+
+    /// The design as a version 1 document: numbers in SI base units, the
+    /// preset kept with only the values that differ from it.
+    ///
+    /// The temperature exponent and reverse gain of the device
+    /// ([`TransistorData::xtb`], [`TransistorData::beta_reverse`]) are not
+    /// part of version 1; a file always gives them their defaults.
+    pub fn to_document(&self) -> DesignDocument {
+        let s = &self.stage;
+        let p = &s.parts;
+        let num = |x: f64| Some(Typed::Number(x));
+        let if_some = |x: Option<f64>| x.map(Typed::Number);
+        let if_nonzero = |x: f64| if x != 0.0 { num(x) } else { None };
+        let ambient = file_celsius(s.ambient);
+        let parts = PartsDocument {
+            r1: if_some(p.r1),
+            r2: if_some(p.r2),
+            rc: if_nonzero(p.rc),
+            re: if_nonzero(p.re),
+            re_bypassed: if_nonzero(p.re_bypassed),
+            rs: if_nonzero(p.rs),
+            rl: num(p.rl),
+            c_in: if_some(p.c_in),
+            c_out: if_some(p.c_out),
+            c_emitter: if_some(p.c_emitter),
+            c_base: if_some(p.c_base),
+            resistor_rating: if p.resistor_rating != DEFAULT_RESISTOR_RATING {
+                num(p.resistor_rating)
+            } else {
+                None
+            },
+        };
+        let r = &self.requirements;
+        let requirements = RequirementsDocument {
+            min_voltage_gain_db: if_some(r.min_voltage_gain_db),
+            max_voltage_gain_db: if_some(r.max_voltage_gain_db),
+            min_input_impedance: if_some(r.min_input_impedance),
+            max_output_impedance: if_some(r.max_output_impedance),
+            min_swing: if_some(r.min_swing),
+            max_f_low: if_some(r.max_f_low),
+            min_f_high: if_some(r.min_f_high),
+            max_supply_current: if_some(r.max_supply_current),
+            max_junction_temperature: if_some(r.max_junction_temperature),
+        };
+        let text = |t: &str| {
+            if t.is_empty() {
+                None
+            } else {
+                Some(t.to_owned())
+            }
+        };
+        DesignDocument {
+            format: DESIGN_FORMAT.to_owned(),
+            title: text(&self.title),
+            notes: text(&self.notes),
+            stage: Some(s.kind.name().to_owned()),
+            supply: num(s.supply),
+            ambient: if ambient != DEFAULT_AMBIENT_CELSIUS {
+                num(ambient)
+            } else {
+                None
+            },
+            transistor: Some(transistor_document(&s.transistor, self.preset.as_deref())),
+            parts: Some(parts),
+            requirements: if r.is_empty() {
+                None
+            } else {
+                Some(requirements)
+            },
+        }
+    }
+
+    /// The design as the pretty-printed JSON of [`Design::to_document`].
+    pub fn to_json(&self) -> String {
+        self.to_document().to_json()
+    }
+
+    /// Analyses the stage with every option on ([`analyze`]).
+    ///
+    /// # Errors
+    /// When the operating point cannot be solved or the small-signal
+    /// network is singular.
+    pub fn analyze(&self) -> Result<Analysis> {
+        analyze(&self.stage)
+    }
+
+    /// Every check of the design: the ratings checks of the analysis
+    /// (always run) followed by the requirements that are set.
+    pub fn checks(&self, analysis: &Analysis) -> Vec<Check> {
+        let mut out = analysis.ratings.clone();
+        out.extend(self.requirements.check(analysis));
+        out
+    }
+}
+
+impl TryFrom<DesignDocument> for Design {
+    type Error = Error;
+
+    /// Reads every value in its unit, applies the preset and the defaults,
+    /// and validates the stage.
+    fn try_from(doc: DesignDocument) -> Result<Design> {
+        check_format(&doc.format)?;
+        let kind = stage_kind(doc.stage.as_deref())?;
+        let supply = required(
+            &doc.supply,
+            "supply",
+            "V",
+            "give the supply voltage in volts, e.g. \"supply\": 12",
+        )?;
+        let ambient = optional(&doc.ambient, "ambient", "°C")?.unwrap_or(DEFAULT_AMBIENT_CELSIUS);
+        let t = doc.transistor.as_ref().ok_or_else(|| {
+            Error::missing(
+                "transistor",
+                "give a transistor block, e.g. \"transistor\": { \"preset\": \"general-purpose-npn\" }",
+            )
+        })?;
+        let transistor = transistor_from(t)?;
+        let p = doc.parts.as_ref().ok_or_else(|| {
+            Error::missing(
+                "parts",
+                "give a parts block with the bias resistors, rc or re, and the load",
+            )
+        })?;
+        let parts = parts_from(kind, p)?;
+        let requirements = match &doc.requirements {
+            Some(r) => requirements_from(r)?,
+            None => Requirements::default(),
+        };
+        let stage = Stage {
+            kind,
+            supply,
+            ambient: Temperature::from_celsius(ambient),
+            parts,
+            transistor,
+        };
+        stage.validate().map_err(locate_part)?;
+        Ok(Design {
+            title: doc.title.unwrap_or_default(),
+            notes: doc.notes.unwrap_or_default(),
+            preset: t.preset.as_ref().map(|s| s.trim().to_owned()),
+            stage,
+            requirements,
+        })
+    }
+}
+
+// ---------------------------------------------------------------------------
+// Reading the raw JSON.
+
+/// The error for a JSON syntax problem: the line and column, the line as
+/// typed, and what was expected there.
+fn json_error(text: &str, e: &serde_json::Error) -> Error {
+    let line = e.line();
+    let message = e.to_string();
+    let expected = if e.is_eof() {
+        "the rest of the document: it ends too early (a closing } or ] or a quote is missing)"
+    } else if message.contains("trailing comma") {
+        "no comma after the last entry of an object or list"
+    } else if message.contains("key must be a string") {
+        "a key in double quotes, such as \"rc\""
+    } else if message.contains("expected `,` or `}`") || message.contains("expected `,` or `]`") {
+        "a comma between entries; a value with a prefix or unit is text and needs double quotes, such as \"4k7\""
+    } else if message.contains("expected `:`") {
+        "a colon between a key and its value, such as \"rc\": \"4k7\""
+    } else if message.contains("invalid number") || message.contains("number out of range") {
+        "a JSON number such as 4700 or 4.7e3; write prefixed values as text in double quotes, such as \"4k7\""
+    } else if message.contains("expected value") || message.contains("expected ident") {
+        "a value: a number such as 4700, text in double quotes such as \"4k7\", true, false, null, an object { } or a list [ ]"
+    } else {
+        "valid JSON: keys and text in double quotes, a comma between entries and none after the last"
+    };
+    // The text around the error as typed (the last non-empty line when the
+    // text ends early), at most 20 characters before the column and 30 after.
+    let (shown, column) = match text.lines().nth(line.saturating_sub(1)) {
+        Some(l) if !l.trim().is_empty() => (l, e.column()),
+        _ => {
+            let l = text
+                .lines()
+                .rev()
+                .find(|l| !l.trim().is_empty())
+                .unwrap_or("");
+            (l, l.len())
+        }
+    };
+    let chars: Vec<(usize, char)> = shown.char_indices().collect();
+    let at = chars
+        .iter()
+        .position(|&(i, _)| i + 1 >= column)
+        .unwrap_or(chars.len());
+    let start = at.saturating_sub(20);
+    let end = (at + 30).min(chars.len());
+    let mut excerpt = String::new();
+    if chars[..start].iter().any(|(_, c)| !c.is_whitespace()) {
+        excerpt.push('…');
+    }
+    excerpt.extend(chars[start..end].iter().map(|&(_, c)| c));
+    let trimmed_start = excerpt.trim_start().len();
+    let mut excerpt = excerpt.split_off(excerpt.len() - trimmed_start);
+    if end < chars.len() {
+        excerpt.push('…');
+    }
+    let mut field = String::new();
+    let _ = write!(field, "line {}, column {}", line, e.column());
+    Error::new(
+        field,
+        ErrorKind::Parse {
+            text: excerpt,
+            expected,
+        },
+    )
+}
+
+/// `prefix.key`, or `key` at the top level.
+fn path(prefix: &str, key: &str) -> String {
+    if prefix.is_empty() {
+        key.to_owned()
+    } else {
+        [prefix, ".", key].concat()
+    }
+}
+
+/// A short rendering of a JSON value for an error message.
+fn shown(value: &Value) -> String {
+    let text = value.to_string();
+    if text.chars().count() > 40 {
+        let mut t: String = text.chars().take(40).collect();
+        t.push('…');
+        t
+    } else {
+        text
+    }
+}
+
+fn parse_error(field: &str, value: &Value, expected: &'static str) -> Error {
+    Error::new(
+        field,
+        ErrorKind::Parse {
+            text: shown(value),
+            expected,
+        },
+    )
+}
+
+/// The map of a JSON object, or an error naming `prefix`.
+fn object<'a>(value: &'a Value, prefix: &str) -> Result<&'a Map<String, Value>> {
+    value
+        .as_object()
+        .ok_or_else(|| parse_error(prefix, value, EXPECTED_OBJECT))
+}
+
+/// The text of `key` in `map`, if given.
+fn text_at(map: &Map<String, Value>, prefix: &str, key: &str) -> Result<Option<String>> {
+    match map.get(key) {
+        None | Some(Value::Null) => Ok(None),
+        Some(Value::String(s)) => Ok(Some(s.clone())),
+        Some(other) => Err(parse_error(&path(prefix, key), other, EXPECTED_TEXT)),
+    }
+}
+
+/// The typed value of `key` in `map`, if given.
+fn typed_at(map: &Map<String, Value>, prefix: &str, key: &str) -> Result<Option<Typed>> {
+    match map.get(key) {
+        None | Some(Value::Null) => Ok(None),
+        Some(Value::String(s)) => Ok(Some(Typed::Text(s.clone()))),
+        Some(Value::Number(n)) => match n.as_f64() {
+            Some(x) => Ok(Some(Typed::Number(x))),
+            None => Err(parse_error(
+                &path(prefix, key),
+                &Value::Number(n.clone()),
+                EXPECTED_VALUE,
+            )),
+        },
+        Some(other) => Err(parse_error(&path(prefix, key), other, EXPECTED_VALUE)),
+    }
+}
+
+/// Every known key of the format, as dotted paths.
+fn all_keys() -> impl Iterator<Item = &'static str> {
+    TOP_KEYS
+        .iter()
+        .chain(TransistorDocument::KEYS)
+        .chain(PartsDocument::KEYS)
+        .chain(RequirementsDocument::KEYS)
+        .copied()
+}
+
+/// The parent of a dotted path: `parts` for `parts.rc`, `` for `supply`.
+fn parent(path: &str) -> &str {
+    path.rsplit_once('.').map_or("", |(p, _)| p)
+}
+
+/// The last name of a dotted path: `rc` for `parts.rc`.
+fn leaf(path: &str) -> &str {
+    path.rsplit_once('.').map_or(path, |(_, k)| k)
+}
+
+/// Rejects the first key of `map` (in file order) that the block `prefix` does not know.
+fn check_keys(map: &Map<String, Value>, prefix: &str) -> Result<()> {
+    for key in map.keys() {
+        let known = all_keys().any(|p| parent(p) == prefix && leaf(p) == key);
+        if !known {
+            return Err(Error::new(
+                path(prefix, key),
+                ErrorKind::UnknownKey {
+                    suggestion: suggest(prefix, key),
+                },
+            ));
+        }
+    }
+    Ok(())
+}
+
+/// Other names people write for a key, anywhere in the file.
+const ALIASES: &[(&str, &str)] = &[
+    ("vcc", "supply"),
+    ("vdd", "supply"),
+    ("vee", "supply"),
+    ("supply_voltage", "supply"),
+    ("temperature", "ambient"),
+    ("ambient_temperature", "ambient"),
+    ("ta", "ambient"),
+    ("version", "format"),
+    ("name", "title"),
+    ("description", "notes"),
+    ("comment", "notes"),
+    ("comments", "notes"),
+    ("type", "stage"),
+    ("topology", "stage"),
+    ("configuration", "stage"),
+    ("device", "transistor"),
+    ("bjt", "transistor"),
+    ("components", "parts"),
+    ("spec", "requirements"),
+    ("specs", "requirements"),
+    ("beta", "transistor.hfe"),
+    ("load", "parts.rl"),
+    ("rload", "parts.rl"),
+    ("r_load", "parts.rl"),
+    ("rsource", "parts.rs"),
+    ("r_source", "parts.rs"),
+];
+
+/// The nearest known key for an unknown `key` in the block `prefix`:
+/// the same name in another block, a known alias, the closest name by
+/// edit distance, or a name that holds every word of the key.
+fn suggest(prefix: &str, key: &str) -> Option<&'static str> {
+    let lower = key.trim().to_ascii_lowercase().replace(['-', ' '], "_");
+    let here = || all_keys().filter(move |p| parent(p) == prefix);
+    // Another spelling of a key of this block (case, dashes).
+    if let Some(p) = here().find(|p| leaf(p) == lower) {
+        return Some(p);
+    }
+    // A key of another block, put at the wrong level.
+    if let Some(p) = all_keys().find(|p| leaf(p) == lower) {
+        return Some(p);
+    }
+    if let Some(&(_, p)) = ALIASES.iter().find(|(a, _)| *a == lower) {
+        return Some(p);
+    }
+    let limit = match lower.chars().count() {
+        0..=3 => 1,
+        4..=8 => 2,
+        _ => 3,
+    };
+    let closest = |keys: &mut dyn Iterator<Item = &'static str>| {
+        let mut best: Option<(usize, &'static str)> = None;
+        for p in keys {
+            let d = edit_distance(&lower, leaf(p));
+            if d <= limit && best.map_or(true, |(b, _)| d < b) {
+                best = Some((d, p));
+            }
+        }
+        best.map(|(_, p)| p)
+    };
+    if let Some(p) = closest(&mut here()) {
+        return Some(p);
+    }
+    // Every word of the key in one name of this block: `min_gain_db`.
+    let words: Vec<&str> = lower.split('_').filter(|w| !w.is_empty()).collect();
+    if words.len() >= 2 {
+        if let Some(p) = here().find(|p| {
+            let names: Vec<&str> = leaf(p).split('_').collect();
+            words.iter().all(|w| names.contains(w))
+        }) {
+            return Some(p);
+        }
+    }
+    closest(&mut all_keys())
+}
+
+/// Edit distance with adjacent transpositions (optimal string alignment), by characters.
+fn edit_distance(a: &str, b: &str) -> usize {
+    let a: Vec<char> = a.chars().collect();
+    let b: Vec<char> = b.chars().collect();
+    let w = b.len() + 1;
+    let mut d: Vec<usize> = Vec::with_capacity((a.len() + 1) * w);
+    for i in 0..=a.len() {
+        for j in 0..=b.len() {
+            d.push(if i == 0 {
+                j
+            } else if j == 0 {
+                i
+            } else {
+                0
+            });
+        }
+    }
+    for i in 1..=a.len() {
+        for j in 1..=b.len() {
+            let cost = usize::from(a[i - 1] != b[j - 1]);
+            let mut v = (d[(i - 1) * w + j] + 1)
+                .min(d[i * w + j - 1] + 1)
+                .min(d[(i - 1) * w + j - 1] + cost);
+            if i > 1 && j > 1 && a[i - 1] == b[j - 2] && a[i - 2] == b[j - 1] {
+                v = v.min(d[(i - 2) * w + j - 2] + 1);
+            }
+            d[i * w + j] = v;
+        }
+    }
+    d[a.len() * w + b.len()]
+}
+
+// ---------------------------------------------------------------------------
+// From typed values to a validated design.
+
+fn check_format(format: &str) -> Result<()> {
+    if DESIGN_FORMATS.contains(&format.trim()) {
+        Ok(())
+    } else {
+        let mut allowed = String::from(DESIGN_FORMAT);
+        allowed.push_str(
+            " (the only version this build reads; a newer file needs a newer stagewright)",
+        );
+        Err(Error::new(
+            "format",
+            ErrorKind::Unsupported {
+                value: format.to_owned(),
+                allowed,
+            },
+        ))
+    }
+}
+
+fn stage_kind(name: Option<&str>) -> Result<StageKind> {
+    let name = name.ok_or_else(|| {
+        Error::missing(
+            "stage",
+            "give \"stage\": \"common-emitter\", \"common-collector\" or \"common-base\"",
+        )
+    })?;
+    StageKind::parse(name).map_err(|_| {
+        Error::new(
+            "stage",
+            ErrorKind::Unsupported {
+                value: name.trim().to_owned(),
+                allowed: "common-emitter, common-collector (the emitter follower) or common-base"
+                    .to_owned(),
+            },
+        )
+    })
+}
+
+fn optional(value: &Option<Typed>, field: &str, unit: &'static str) -> Result<Option<f64>> {
+    value.as_ref().map(|v| v.value(field, unit)).transpose()
+}
+
+fn required(
+    value: &Option<Typed>,
+    field: &str,
+    unit: &'static str,
+    purpose: &'static str,
+) -> Result<f64> {
+    match value {
+        Some(v) => v.value(field, unit),
+        None => Err(Error::missing(field, purpose)),
+    }
+}
+
+/// Why a transistor key is needed when there is no preset.
+const NO_PRESET: &str =
+    "with no transistor.preset every datasheet value must be given; name a preset (such as general-purpose-npn) or give the value";
+
+fn transistor_from(t: &TransistorDocument) -> Result<TransistorData> {
+    let base = match &t.preset {
+        Some(name) => Some(preset(name)?),
+        None => None,
+    };
+    let polarity = match &t.polarity {
+        Some(p) => Polarity::parse(p).map_err(|e| e.within("transistor"))?,
+        None => match &base {
+            Some(b) => b.polarity,
+            None => return Err(Error::missing("transistor.polarity", NO_PRESET)),
+        },
+    };
+    // A key's value: given, else the preset's, else required.
+    let pick = |v: &Option<Typed>,
+                name: &str,
+                unit: &'static str,
+                from_base: fn(&TransistorData) -> f64|
+     -> Result<f64> {
+        let field = path("transistor", name);
+        match (v, &base) {
+            (Some(v), _) => v.value(&field, unit),
+            (None, Some(b)) => Ok(from_base(b)),
+            (None, None) => Err(Error::missing(field, NO_PRESET)),
+        }
+    };
+    // An optional key: given, else the preset's, else none.
+    let maybe = |v: &Option<Typed>,
+                 name: &str,
+                 unit: &'static str,
+                 from_base: fn(&TransistorData) -> Option<f64>|
+     -> Result<Option<f64>> {
+        match v {
+            Some(v) => v.value(&path("transistor", name), unit).map(Some),
+            None => Ok(base.as_ref().and_then(from_base)),
+        }
+    };
+    Ok(TransistorData {
+        polarity,
+        hfe: pick(&t.hfe, "hfe", "", |b| b.hfe)?,
+        hfe_min: pick(&t.hfe_min, "hfe_min", "", |b| b.hfe_min)?,
+        hfe_max: pick(&t.hfe_max, "hfe_max", "", |b| b.hfe_max)?,
+        vbe: pick(&t.vbe, "vbe", "V", |b| b.vbe)?,
+        vbe_at_ic: pick(&t.vbe_at_ic, "vbe_at_ic", "A", |b| b.vbe_at_ic)?,
+        early_voltage: maybe(&t.early_voltage, "early_voltage", "V", |b| b.early_voltage)?,
+        ft: pick(&t.ft, "ft", "Hz", |b| b.ft)?,
+        cob: pick(&t.cob, "cob", "F", |b| b.cob)?,
+        cob_vcb: maybe(&t.cob_vcb, "cob_vcb", "V", |b| b.cob_vcb)?,
+        rbb: match &t.rbb {
+            Some(v) => v.value("transistor.rbb", "Ω")?,
+            None => base.as_ref().map_or(0.0, |b| b.rbb),
+        },
+        vce_sat: pick(&t.vce_sat, "vce_sat", "V", |b| b.vce_sat)?,
+        vceo_max: pick(&t.vceo_max, "vceo_max", "V", |b| b.vceo_max)?,
+        ic_max: pick(&t.ic_max, "ic_max", "A", |b| b.ic_max)?,
+        ptot_max: pick(&t.ptot_max, "ptot_max", "W", |b| b.ptot_max)?,
+        rth_ja: pick(&t.rth_ja, "rth_ja", "K/W", |b| b.rth_ja)?,
+        tj_max: Temperature::from_celsius(pick(&t.tj_max, "tj_max", "°C", |b| {
+            b.tj_max.celsius()
+        })?),
+        xtb: base.as_ref().map_or(DEFAULT_XTB, |b| b.xtb),
+        beta_reverse: base
+            .as_ref()
+            .map_or(DEFAULT_BETA_REVERSE, |b| b.beta_reverse),
+    })
+}
+
+fn parts_from(kind: StageKind, p: &PartsDocument) -> Result<Parts> {
+    let get =
+        |v: &Option<Typed>, name: &str, unit: &'static str| optional(v, &path("parts", name), unit);
+    let needs_rc = matches!(kind, StageKind::CommonEmitter | StageKind::CommonBase);
+    let needs_re = matches!(kind, StageKind::CommonCollector | StageKind::CommonBase);
+    if needs_rc && p.rc.is_none() {
+        return Err(Error::missing(
+            "parts.rc",
+            "a common-emitter or common-base stage takes its output across the collector resistor rc",
+        ));
+    }
+    if needs_re && p.re.is_none() {
+        return Err(Error::missing(
+            "parts.re",
+            "a common-collector or common-base stage returns its emitter current through re",
+        ));
+    }
+    let d = Parts::default();
+    Ok(Parts {
+        r1: get(&p.r1, "r1", "Ω")?,
+        r2: get(&p.r2, "r2", "Ω")?,
+        rc: get(&p.rc, "rc", "Ω")?.unwrap_or(d.rc),
+        re: get(&p.re, "re", "Ω")?.unwrap_or(d.re),
+        re_bypassed: get(&p.re_bypassed, "re_bypassed", "Ω")?.unwrap_or(d.re_bypassed),
+        rs: get(&p.rs, "rs", "Ω")?.unwrap_or(d.rs),
+        rl: get(&p.rl, "rl", "Ω")?.unwrap_or(d.rl),
+        c_in: get(&p.c_in, "c_in", "F")?,
+        c_out: get(&p.c_out, "c_out", "F")?,
+        c_emitter: get(&p.c_emitter, "c_emitter", "F")?,
+        c_base: get(&p.c_base, "c_base", "F")?,
+        resistor_rating: get(&p.resistor_rating, "resistor_rating", "W")?
+            .unwrap_or(d.resistor_rating),
+    })
+}
+
+fn requirements_from(r: &RequirementsDocument) -> Result<Requirements> {
+    let field = |name: &str| path("requirements", name);
+    let finite = |v: &Option<Typed>, name: &str, unit: &'static str| -> Result<Option<f64>> {
+        optional(v, &field(name), unit)
+    };
+    let pos = |v: &Option<Typed>, name: &str, unit: &'static str| -> Result<Option<f64>> {
+        optional(v, &field(name), unit)?
+            .map(|x| positive(&field(name), x, unit))
+            .transpose()
+    };
+    let out = Requirements {
+        min_voltage_gain_db: finite(&r.min_voltage_gain_db, "min_voltage_gain_db", "dB")?,
+        max_voltage_gain_db: finite(&r.max_voltage_gain_db, "max_voltage_gain_db", "dB")?,
+        min_input_impedance: pos(&r.min_input_impedance, "min_input_impedance", "Ω")?,
+        max_output_impedance: pos(&r.max_output_impedance, "max_output_impedance", "Ω")?,
+        min_swing: finite(&r.min_swing, "min_swing", "V")?
+            .map(|x| non_negative(&field("min_swing"), x, "V"))
+            .transpose()?,
+        max_f_low: pos(&r.max_f_low, "max_f_low", "Hz")?,
+        min_f_high: pos(&r.min_f_high, "min_f_high", "Hz")?,
+        max_supply_current: pos(&r.max_supply_current, "max_supply_current", "A")?,
+        max_junction_temperature: finite(
+            &r.max_junction_temperature,
+            "max_junction_temperature",
+            "°C",
+        )?,
+    };
+    if let (Some(lo), Some(hi)) = (out.min_voltage_gain_db, out.max_voltage_gain_db) {
+        if lo > hi {
+            let mut reason = String::new();
+            let _ = write!(
+                reason,
+                "min_voltage_gain_db ({lo} dB) is above max_voltage_gain_db ({hi} dB); no gain can meet both"
+            );
+            return Err(Error::inconsistent(field("min_voltage_gain_db"), reason));
+        }
+    }
+    Ok(out)
+}
+
+/// A temperature in °C as a file writes it: rounded to 1 nK so that the
+/// kelvin round trip (0.1 °C is 273.25 K is 0.10000000000002274 °C) does
+/// not show.
+pub(crate) fn file_celsius(t: Temperature) -> f64 {
+    libm::round(t.celsius() * 1e9) / 1e9
+}
+
+/// Puts `parts.` in front of the part names that [`Stage::validate`] reports bare.
+fn locate_part(e: Error) -> Error {
+    let bare = e.field();
+    if PartsDocument::KEYS.iter().any(|p| leaf(p) == bare) {
+        e.within("parts")
+    } else {
+        e
+    }
+}
+
+/// The transistor block of a design: the preset and the values that differ
+/// from it, or every value when there is no preset (or when the preset
+/// cannot express the device).
+fn transistor_document(t: &TransistorData, preset_name: Option<&str>) -> TransistorDocument {
+    let base = preset_name.and_then(|n| preset(n).ok().map(|b| (n, b)));
+    // A preset whose Early voltage or Cob voltage was removed cannot be
+    // written as overrides: write the device in full instead.
+    let base = base.filter(|(_, b)| {
+        (b.early_voltage.is_none() || t.early_voltage.is_some())
+            && (b.cob_vcb.is_none() || t.cob_vcb.is_some())
+    });
+    let differs = |x: f64, f: fn(&TransistorData) -> f64| match &base {
+        Some((_, b)) if f(b) == x => None,
+        _ => Some(Typed::Number(x)),
+    };
+    let differs_opt = |x: Option<f64>, f: fn(&TransistorData) -> Option<f64>| match (&base, x) {
+        (_, None) => None,
+        (Some((_, b)), Some(v)) if f(b) == Some(v) => None,
+        (_, Some(v)) => Some(Typed::Number(v)),
+    };
+    TransistorDocument {
+        preset: base.as_ref().map(|(n, _)| (*n).to_owned()),
+        polarity: match &base {
+            Some((_, b)) if b.polarity == t.polarity => None,
+            _ => Some(t.polarity.name().to_owned()),
+        },
+        hfe: differs(t.hfe, |b| b.hfe),
+        hfe_min: differs(t.hfe_min, |b| b.hfe_min),
+        hfe_max: differs(t.hfe_max, |b| b.hfe_max),
+        vbe: differs(t.vbe, |b| b.vbe),
+        vbe_at_ic: differs(t.vbe_at_ic, |b| b.vbe_at_ic),
+        early_voltage: differs_opt(t.early_voltage, |b| b.early_voltage),
+        ft: differs(t.ft, |b| b.ft),
+        cob: differs(t.cob, |b| b.cob),
+        cob_vcb: differs_opt(t.cob_vcb, |b| b.cob_vcb),
+        rbb: match &base {
+            Some((_, b)) if b.rbb == t.rbb => None,
+            None if t.rbb == 0.0 => None,
+            _ => Some(Typed::Number(t.rbb)),
+        },
+        vce_sat: differs(t.vce_sat, |b| b.vce_sat),
+        vceo_max: differs(t.vceo_max, |b| b.vceo_max),
+        ic_max: differs(t.ic_max, |b| b.ic_max),
+        ptot_max: differs(t.ptot_max, |b| b.ptot_max),
+        rth_ja: differs(t.rth_ja, |b| b.rth_ja),
+        tj_max: differs(file_celsius(t.tj_max), |b| file_celsius(b.tj_max)),
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    /// A small valid design used by several tests: a common-emitter stage
+    /// from a preset, with one value typed as text.
+    const GOOD: &str = r#"{
+        "format": "stagewright/1",
+        "title": "test stage",
+        "stage": "common-emitter",
+        "supply": 12,
+        "transistor": { "preset": "general-purpose-npn" },
+        "parts": { "r1": "47k", "r2": "10k", "rc": "4k7", "re": 220, "re_bypassed": 820,
+                   "rs": 600, "rl": "10k", "c_in": "1u", "c_out": "1u", "c_emitter": "47u" },
+        "requirements": { "min_voltage_gain_db": 20, "min_swing": "1 V" }
+    }"#;
+
+    fn err(text: &str) -> Error {
+        match Design::from_json(text) {
+            Ok(d) => panic!("expected an error, got a design titled {:?}", d.title),
+            Err(e) => e,
+        }
+    }
+
+    fn with(old: &str, new: &str) -> String {
+        assert!(GOOD.contains(old), "the test text must contain {old}");
+        GOOD.replacen(old, new, 1)
+    }
+
+    #[test]
+    fn reads_a_design_from_a_preset_with_typed_values() {
+        let d = Design::from_json(GOOD).expect("the sample design is valid");
+        assert_eq!(d.stage.kind, StageKind::CommonEmitter, "stage name read");
+        assert_eq!(d.stage.parts.rc, 4700.0, "\"4k7\" is exactly 4700 Ω");
+        assert_eq!(d.stage.parts.c_emitter, Some(47e-6), "\"47u\" is 47 µF");
+        assert_eq!(
+            d.stage.transistor,
+            preset("general-purpose-npn").unwrap(),
+            "no override: the preset's values are used unchanged"
+        );
+        assert_eq!(d.requirements.min_swing, Some(1.0), "\"1 V\" reads as 1 V");
+        assert_eq!(
+            d.stage.ambient.celsius(),
+            DEFAULT_AMBIENT_CELSIUS,
+            "ambient defaults to 25 °C"
+        );
+    }
+
+    #[test]
+    fn keys_beside_a_preset_override_it() {
+        let d = Design::from_json(&with(
+            r#""preset": "general-purpose-npn""#,
+            r#""preset": "general-purpose-npn", "hfe_min": 150, "ft": "300 MHz""#,
+        ))
+        .expect("overrides within the preset's ranges are valid");
+        assert_eq!(d.stage.transistor.hfe_min, 150.0, "hfe_min overridden");
+        assert_eq!(
+            d.stage.transistor.ft, 300e6,
+            "ft overridden from text with unit"
+        );
+        assert_eq!(
+            d.stage.transistor.hfe, 200.0,
+            "other values stay the preset's"
+        );
+    }
+
+    #[test]
+    fn an_unknown_key_names_the_nearest_known_key() {
+        let e = err(&with("\"min_swing\"", "\"min_swng\""));
+        assert_eq!(
+            e.field(),
+            "requirements.min_swng",
+            "the field is the dotted path"
+        );
+        assert_eq!(
+            e.kind(),
+            &ErrorKind::UnknownKey {
+                suggestion: Some("requirements.min_swing")
+            },
+            "one letter missing: the nearest key is suggested"
+        );
+        let e = err(&with("\"supply\": 12", "\"supply\": 12, \"hfe\": 100"));
+        assert_eq!(
+            e.kind(),
+            &ErrorKind::UnknownKey {
+                suggestion: Some("transistor.hfe")
+            },
+            "a key put at the wrong level points to where it belongs"
+        );
+        let e = err(&with("\"min_swing\"", "\"min_gain_db\""));
+        assert_eq!(
+            e.kind(),
+            &ErrorKind::UnknownKey {
+                suggestion: Some("requirements.min_voltage_gain_db")
+            },
+            "every word of the key in one known key: that key is suggested"
+        );
+        let e = err(&with("\"supply\": 12", "\"supply\": 12, \"zzzzzz\": 1"));
+        assert_eq!(
+            e.kind(),
+            &ErrorKind::UnknownKey { suggestion: None },
+            "nothing close: no suggestion rather than a misleading one"
+        );
+    }
+
+    #[test]
+    fn values_are_read_in_their_unit_and_errors_name_the_path() {
+        let e = err(&with(r#""rc": "4k7""#, r#""rc": "4k7k""#));
+        assert_eq!(e.field(), "parts.rc", "a bad value string names its key");
+        assert!(
+            matches!(e.kind(), ErrorKind::Parse { text, .. } if text == "4k7k"),
+            "the text is quoted as typed: {e}"
+        );
+        let e = err(&with(r#""rc": "4k7""#, r#""rc": -1000"#));
+        assert_eq!(
+            e.field(),
+            "parts.rc",
+            "the core's bare part name gets its block"
+        );
+        assert!(e.to_string().contains("-1 kΩ"), "the value is shown: {e}");
+        let e = err(&with(r#""rc": "4k7""#, r#""rc": true"#));
+        assert_eq!(
+            e.field(),
+            "parts.rc",
+            "a JSON value of the wrong type names its key"
+        );
+    }
+
+    #[test]
+    fn format_version_is_checked_first() {
+        let e = err(&with("stagewright/1", "stagewright/2"));
+        assert_eq!(e.field(), "format", "the version error names format");
+        assert!(
+            e.to_string().contains("stagewright/1"),
+            "the message says which versions are understood: {e}"
+        );
+        let e = err(&with(r#""format": "stagewright/1","#, ""));
+        assert!(
+            matches!(e.kind(), ErrorKind::Missing { .. }),
+            "a file without a format is refused"
+        );
+    }
+
+    #[test]
+    fn json_syntax_errors_give_line_column_and_the_line() {
+        let e = err(&with(r#""rc": "4k7""#, r#""rc": 4k7"#));
+        assert!(
+            e.field().starts_with("line 7, column"),
+            "the position is given: {e}"
+        );
+        assert!(
+            e.to_string().contains("\"4k7\""),
+            "the fix, quoting, is suggested: {e}"
+        );
+    }
+
+    #[test]
+    fn an_empty_file_says_what_a_design_file_starts_with() {
+        let e = err("  \n");
+        assert_eq!(e.field(), "format", "the first key a file needs is named");
+        assert!(
+            e.to_string().contains("empty"),
+            "the message says the file is empty: {e}"
+        );
+    }
+
+    #[test]
+    fn stage_specific_parts_are_required_or_refused() {
+        let e = err(&with(r#""rc": "4k7","#, ""));
+        assert_eq!(e.field(), "parts.rc", "a common-emitter stage needs rc");
+        assert!(
+            matches!(e.kind(), ErrorKind::Missing { .. }),
+            "rc missing, not zero: {e}"
+        );
+        let e = err(&with(
+            r#""c_emitter": "47u""#,
+            r#""c_emitter": "47u", "c_base": "1u""#,
+        ));
+        assert_eq!(
+            e.field(),
+            "parts.c_base",
+            "c_base has no place in a common-emitter stage"
+        );
+        let e = err(&with("\"common-emitter\"", "\"emitter-follower\""));
+        assert!(
+            e.to_string()
+                .contains("common-collector (the emitter follower)"),
+            "the usual name of the follower leads to its stage name: {e}"
+        );
+    }
+
+    #[test]
+    fn a_transistor_without_preset_needs_every_datasheet_value() {
+        let e = err(&with(
+            r#""preset": "general-purpose-npn""#,
+            r#""polarity": "npn", "hfe": 100"#,
+        ));
+        assert_eq!(
+            e.field(),
+            "transistor.hfe_min",
+            "the first missing value is named"
+        );
+    }
+
+    #[test]
+    fn writing_and_reading_back_gives_the_same_design() {
+        let d = Design::from_json(&with(
+            r#""preset": "general-purpose-npn""#,
+            r#""preset": "general-purpose-npn", "hfe_min": 150"#,
+        ))
+        .unwrap();
+        let text = d.to_json();
+        assert!(
+            text.contains("\"hfe_min\": 150.0"),
+            "only the override is written: {text}"
+        );
+        assert!(
+            !text.contains("\"hfe\""),
+            "values equal to the preset's are left out: {text}"
+        );
+        let back = Design::from_json(&text).expect("a written design reads back");
+        assert_eq!(back, d, "writing then reading is lossless");
+        assert_eq!(back.to_json(), text, "and writing is stable");
+    }
+
+    #[test]
+    fn a_device_without_preset_and_a_decimal_ambient_write_back_cleanly() {
+        let text = with(
+            r#"{ "preset": "general-purpose-npn" }"#,
+            r#"{ "polarity": "pnp", "hfe": 150, "hfe_min": 100, "hfe_max": 300, "vbe": 0.66,
+                 "vbe_at_ic": "1m", "ft": "150M", "cob": "6p", "vce_sat": 0.3, "vceo_max": 45,
+                 "ic_max": 0.1, "ptot_max": 0.5, "rth_ja": 250, "tj_max": 150 }"#,
+        )
+        .replace("\"supply\": 12,", "\"supply\": 12, \"ambient\": 0.1,");
+        let d = Design::from_json(&text).expect("a complete datasheet device is valid");
+        assert_eq!(
+            d.stage.transistor.early_voltage, None,
+            "no early_voltage: no Early effect"
+        );
+        assert_eq!(d.stage.transistor.rbb, 0.0, "no rbb: 0 Ω");
+        let written = d.to_json();
+        assert!(
+            written.contains("\"ambient\": 0.1,"),
+            "0.1 °C is written as typed: {written}"
+        );
+        assert!(
+            !written.contains("preset"),
+            "no preset is invented: {written}"
+        );
+        let back = Design::from_json(&written).expect("the written file reads back");
+        assert_eq!(
+            back.stage.transistor, d.stage.transistor,
+            "the device survives the round trip"
+        );
+        assert_eq!(back.to_json(), written, "writing is stable");
+    }
+
+    #[test]
+    fn serde_deserialization_runs_the_same_checks() {
+        let v: core::result::Result<DesignDocument, _> =
+            serde_json::from_str(&with("\"min_swing\"", "\"min_swng\""));
+        let message = v
+            .expect_err("an unknown key is refused through serde too")
+            .to_string();
+        assert!(
+            message.contains("min_swing"),
+            "the suggestion survives: {message}"
+        );
+    }
+
+    #[test]
+    fn no_single_character_deletion_or_digit_change_panics() {
+        // Every way of deleting one character, and of turning one character
+        // into a 9, must give an error or an analysable design, never a panic.
+        let cuts = GOOD.char_indices().map(|(i, c)| (i, c.len_utf8()));
+        let mut analysed = 0;
+        for (i, len) in cuts {
+            for replacement in ["", "9"] {
+                let text = [&GOOD[..i], replacement, &GOOD[i + len..]].concat();
+                if let Ok(d) = Design::from_json(&text) {
+                    let _ = d.analyze();
+                    analysed += 1;
+                }
+            }
+        }
+        assert!(
+            analysed > 10,
+            "some mutations stay valid and are analysed: {analysed}"
+        );
+    }
+
+    #[test]
+    fn edit_distance_counts_transpositions_once() {
+        assert_eq!(edit_distance("rcc", "rc"), 1, "one insertion");
+        assert_eq!(edit_distance("hfe_mni", "hfe_min"), 1, "one transposition");
+        assert_eq!(edit_distance("", "abc"), 3, "three insertions");
+    }
+}
