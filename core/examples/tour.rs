@@ -32,15 +32,24 @@ fn main() -> Result<(), stagewright::Error> {
     println!("  IC                {}", format_si(op.ic, "A"));
     println!("  VCE               {}", format_si(op.vce, "V"));
     println!("  voltage gain      {:.2}", a.midband.voltage_gain);
-    println!("  input impedance   {}", format_si(a.midband.input_impedance, "Ω"));
-    println!("  output impedance  {}", format_si(a.midband.output_impedance, "Ω"));
+    println!(
+        "  input impedance   {}",
+        format_si(a.midband.input_impedance, "Ω")
+    );
+    println!(
+        "  output impedance  {}",
+        format_si(a.midband.output_impedance, "Ω")
+    );
     if let Some(f) = a.bandwidth.f_low {
         println!("  lower corner      {}", format_si(f, "Hz"));
     }
     if let Some(f) = a.bandwidth.f_high {
         println!("  upper corner      {}", format_si(f, "Hz"));
     }
-    println!("  symmetric swing   {} peak", format_si(a.swing.symmetric, "V"));
+    println!(
+        "  symmetric swing   {} peak",
+        format_si(a.swing.symmetric, "V")
+    );
     for c in &a.cautions {
         println!("  caution: {}", c.message);
     }

@@ -840,7 +840,7 @@ fn suggest(prefix: &str, key: &str) -> Option<&'static str> {
         let mut best: Option<(usize, &'static str)> = None;
         for p in keys {
             let d = edit_distance(&lower, leaf(p));
-            if d <= limit && best.map_or(true, |(b, _)| d < b) {
+            if d <= limit && best.is_none_or(|(b, _)| d < b) {
                 best = Some((d, p));
             }
         }

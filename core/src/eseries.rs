@@ -208,7 +208,7 @@ impl ESeries {
             } else {
                 value / candidate
             };
-            if best.map_or(true, |(_, r)| ratio < r) {
+            if best.is_none_or(|(_, r)| ratio < r) {
                 best = Some((candidate, ratio));
             }
         });
@@ -225,7 +225,7 @@ impl ESeries {
         let floor = value - SAME_VALUE_REL * value;
         let mut best: Option<f64> = None;
         self.for_each_candidate(value, |candidate| {
-            if candidate >= floor && best.map_or(true, |b| candidate < b) {
+            if candidate >= floor && best.is_none_or(|b| candidate < b) {
                 best = Some(candidate);
             }
         });
@@ -240,7 +240,7 @@ impl ESeries {
         let ceiling = value + SAME_VALUE_REL * value;
         let mut best: Option<f64> = None;
         self.for_each_candidate(value, |candidate| {
-            if candidate <= ceiling && best.map_or(true, |b| candidate > b) {
+            if candidate <= ceiling && best.is_none_or(|b| candidate > b) {
                 best = Some(candidate);
             }
         });

@@ -1,0 +1,408 @@
+//! Coverage of the core's public items by reference checks, in the manner
+//! of a libm-style coverage check: every name that `core/src/lib.rs`
+//! exports must be listed below with the test that checks it.
+//!
+//! - [`Covered::Reference`]: an equation, a model or a constant, checked
+//!   against an outside reference (a standard, a book, an independent
+//!   computation) by the named test in `tests/tests/<file>.rs`.
+//! - [`Covered::Api`]: not an equation (input data, names, errors, options,
+//!   limits of the implementation), checked by the named test of the
+//!   integration binary `core/tests/engine.rs`.
+//! - [`Covered::Format`]: the design-file reader and the report, which hold
+//!   no equation of their own (they call the items above); the command-line
+//!   tests exercise them.
+//!
+//! The test fails when lib.rs exports a name that is not listed, when a
+//! listed name is no longer exported, and when a named test function does
+//! not exist in its file.
+
+use std::collections::BTreeSet;
+
+/// How a public item is covered.
+#[derive(Debug, Clone, Copy)]
+enum Covered {
+    /// (file in `tests/tests/`, without `.rs`; test function).
+    Reference(&'static str, &'static str),
+    /// Test function in `core/tests/engine.rs`.
+    Api(&'static str),
+    /// Why the item holds no equation.
+    Format(&'static str),
+}
+
+use Covered::{Api, Format, Reference};
+
+const DESIGN_FILE: &str =
+    "design-file reader: reads values and calls the checked items; no equation";
+const REPORT: &str = "report writer: formats an Analysis; no equation";
+
+/// Every public item of the core and the test that covers it.
+const COVERAGE: &[(&str, Covered)] = &[
+    // analysis
+    (
+        "analyze",
+        Reference("textbook", "malvino_bates_8_3_divider_bias"),
+    ),
+    (
+        "analyze_with",
+        Api("options_leave_out_bandwidth_and_stability"),
+    ),
+    (
+        "Analysis",
+        Reference("textbook", "boylestad_nashelsky_5_2_bypassed_ce"),
+    ),
+    ("Options", Api("options_leave_out_bandwidth_and_stability")),
+    // constants
+    (
+        "thermal_voltage",
+        Reference("constants", "thermal_voltage_is_kt_over_q"),
+    ),
+    (
+        "Temperature",
+        Reference("constants", "celsius_and_kelvin_convert_by_273_15"),
+    ),
+    (
+        "BOLTZMANN",
+        Reference("constants", "si_defining_constants_are_exact"),
+    ),
+    (
+        "DATASHEET_TEMPERATURE",
+        Reference("constants", "si_defining_constants_are_exact"),
+    ),
+    (
+        "ELEMENTARY_CHARGE",
+        Reference("constants", "si_defining_constants_are_exact"),
+    ),
+    (
+        "ZERO_CELSIUS",
+        Reference("constants", "si_defining_constants_are_exact"),
+    ),
+    // errors
+    ("Error", Api("errors_each_bad_part_is_named")),
+    ("ErrorKind", Api("errors_negative_load_names_rl")),
+    ("Result", Api("errors_convert_to_strings_and_nest")),
+    // preferred numbers, values and their printing
+    (
+        "ESeries",
+        Reference("eseries", "every_table_entry_matches_the_typed_copy"),
+    ),
+    (
+        "SeriesLookup",
+        Reference("eseries", "lookups_land_on_standard_values"),
+    ),
+    (
+        "format_si",
+        Reference("practice", "engineering_notation_follows_the_si_brochure"),
+    ),
+    (
+        "format_value",
+        Reference("practice", "engineering_notation_follows_the_si_brochure"),
+    ),
+    (
+        "parse_value",
+        Reference("eseries", "rkm_codes_read_as_the_standard_says"),
+    ),
+    (
+        "parse_value_field",
+        Reference("eseries", "rkm_codes_read_as_the_standard_says"),
+    ),
+    // small signal, midband, nodal analysis
+    ("SmallSignal", Reference("device", "hybrid_pi_relations")),
+    (
+        "OPEN_RESISTANCE",
+        Api("limits_no_early_effect_means_an_open_ro"),
+    ),
+    (
+        "Midband",
+        Reference(
+            "nodal",
+            "closed_form_matches_nodal_midband_without_early_effect",
+        ),
+    ),
+    (
+        "db10",
+        Reference(
+            "practice",
+            "decibels_follow_the_field_and_power_definitions",
+        ),
+    ),
+    (
+        "db20",
+        Reference(
+            "practice",
+            "decibels_follow_the_field_and_power_definitions",
+        ),
+    ),
+    (
+        "AcNetwork",
+        Reference("nodal", "sweep_matches_independent_nodal_solve"),
+    ),
+    ("Band", Api("network_midband_solve_is_the_reported_midband")),
+    (
+        "FrequencyPoint",
+        Reference("nodal", "sweep_matches_independent_nodal_solve"),
+    ),
+    // operating point
+    (
+        "OperatingPoint",
+        Reference("textbook", "boylestad_nashelsky_4_7_exact_divider_analysis"),
+    ),
+    (
+        "Region",
+        Api("region_saturating_divider_reports_saturation"),
+    ),
+    // presets
+    ("preset", Api("presets_all_resolve_and_validate")),
+    ("Preset", Api("presets_all_resolve_and_validate")),
+    ("PRESETS", Api("presets_all_resolve_and_validate")),
+    // ratings and cautions
+    (
+        "BiasStability",
+        Reference("practice", "stiff_divider_keeps_the_bias_across_hfe"),
+    ),
+    (
+        "Caution",
+        Reference("practice", "es1_and_hot_surface_cautions"),
+    ),
+    (
+        "Check",
+        Reference("practice", "resistor_derating_and_junction_temperature"),
+    ),
+    (
+        "Dissipation",
+        Reference("textbook", "malvino_bates_12_1_to_12_4_ac_load_line"),
+    ),
+    (
+        "BIAS_STABILITY_LIMIT",
+        Reference("practice", "stiff_divider_keeps_the_bias_across_hfe"),
+    ),
+    (
+        "DEFERRAL",
+        Reference("practice", "es1_and_hot_surface_cautions"),
+    ),
+    (
+        "ES1_DC_LIMIT",
+        Reference("practice", "es1_and_hot_surface_cautions"),
+    ),
+    (
+        "HOT_SURFACE_CELSIUS",
+        Reference("practice", "es1_and_hot_surface_cautions"),
+    ),
+    (
+        "RATING_MARGIN",
+        Reference("practice", "resistor_derating_and_junction_temperature"),
+    ),
+    (
+        "RESISTOR_DERATING",
+        Reference("practice", "resistor_derating_and_junction_temperature"),
+    ),
+    ("Requirements", Api("requirements_pass_and_fail")),
+    // frequency response
+    (
+        "log_frequencies",
+        Reference("practice", "sweep_frequencies_are_log_spaced"),
+    ),
+    (
+        "Bandwidth",
+        Reference("textbook", "kumar_jain_10_7_high_frequency_ce"),
+    ),
+    (
+        "Response",
+        Reference("textbook", "boylestad_nashelsky_low_frequency_corners"),
+    ),
+    (
+        "SEARCH_FROM",
+        Api("limits_ideal_capacitors_give_no_lower_corner"),
+    ),
+    (
+        "SEARCH_TO",
+        Api("limits_ideal_capacitors_give_no_lower_corner"),
+    ),
+    // the stage
+    ("Parts", Api("topology_parts_that_do_not_belong")),
+    ("Stage", Api("topology_common_emitter_needs_rc")),
+    ("StageKind", Api("names_parse_back")),
+    (
+        "DEFAULT_RESISTOR_RATING",
+        Reference("practice", "resistor_derating_and_junction_temperature"),
+    ),
+    ("MAX_SUPPLY", Api("errors_each_bad_part_is_named")),
+    // swing
+    (
+        "Swing",
+        Reference("textbook", "malvino_bates_12_1_to_12_4_ac_load_line"),
+    ),
+    // the device
+    (
+        "Currents",
+        Reference("device", "ebers_moll_derivatives_match_central_differences"),
+    ),
+    (
+        "Device",
+        Reference("device", "ebers_moll_transport_equations"),
+    ),
+    ("Polarity", Api("mirror_pnp_has_equal_magnitudes_and_gains")),
+    (
+        "TransistorData",
+        Reference("device", "gummel_poon_temperature_laws"),
+    ),
+    (
+        "CJC_BUILT_IN",
+        Reference("device", "junction_capacitance_law"),
+    ),
+    (
+        "CJC_GRADING",
+        Reference("device", "junction_capacitance_law"),
+    ),
+    (
+        "DEFAULT_BETA_REVERSE",
+        Reference("practice", "device_defaults_from_memory"),
+    ),
+    (
+        "DEFAULT_XTB",
+        Reference("practice", "device_defaults_from_memory"),
+    ),
+    (
+        "SILICON_EG",
+        Reference("device", "gummel_poon_temperature_laws"),
+    ),
+    (
+        "SILICON_XTI",
+        Reference("device", "gummel_poon_temperature_laws"),
+    ),
+    (
+        "TEST_VCE",
+        Reference(
+            "device",
+            "saturation_current_is_referred_from_the_datasheet_vbe",
+        ),
+    ),
+    // design file and report (feature "serde")
+    ("Design", Format(DESIGN_FILE)),
+    ("DesignDocument", Format(DESIGN_FILE)),
+    ("PartsDocument", Format(DESIGN_FILE)),
+    ("RequirementsDocument", Format(DESIGN_FILE)),
+    ("TransistorDocument", Format(DESIGN_FILE)),
+    ("Typed", Format(DESIGN_FILE)),
+    ("DEFAULT_AMBIENT_CELSIUS", Format(DESIGN_FILE)),
+    ("DESIGN_FORMAT", Format(DESIGN_FILE)),
+    ("DESIGN_FORMATS", Format(DESIGN_FILE)),
+    ("Report", Format(REPORT)),
+    ("SweepRow", Format(REPORT)),
+    ("SweepTable", Format(REPORT)),
+    ("REPORT_FORMAT", Format(REPORT)),
+    ("SWEEP_FORMAT", Format(REPORT)),
+];
+
+/// The core's lib.rs as it is now.
+const LIB_RS: &str = include_str!("../../core/src/lib.rs");
+
+/// The test files the coverage names, by name.
+const TEST_FILES: &[(&str, &str)] = &[
+    ("constants", include_str!("constants.rs")),
+    ("device", include_str!("device.rs")),
+    ("eseries", include_str!("eseries.rs")),
+    ("nodal", include_str!("nodal.rs")),
+    ("practice", include_str!("practice.rs")),
+    ("textbook", include_str!("textbook.rs")),
+];
+
+/// The integration binary of the core.
+const ENGINE_RS: &str = include_str!("../../core/tests/engine.rs");
+
+/// The names of every `pub use` item of `lib`: `pub use a::{B, c};` and
+/// `pub use a::b;` and `pub use a::b as c;`, over any number of lines.
+fn exported_names(lib: &str) -> BTreeSet<String> {
+    let mut names = BTreeSet::new();
+    let mut rest = lib;
+    while let Some(at) = rest.find("pub use ") {
+        let after = &rest[at + "pub use ".len()..];
+        let end = after.find(';').expect("a pub use ends with ';'");
+        let path = &after[..end];
+        let items = match (path.find('{'), path.rfind('}')) {
+            (Some(open), Some(close)) => path[open + 1..close].to_string(),
+            _ => path.rsplit("::").next().unwrap_or(path).to_string(),
+        };
+        for item in items.split(',') {
+            let item = item.trim();
+            if item.is_empty() {
+                continue;
+            }
+            let name = match item.split_once(" as ") {
+                Some((_, alias)) => alias.trim(),
+                None => item,
+            };
+            names.insert(name.to_string());
+        }
+        rest = &after[end..];
+    }
+    names
+}
+
+/// Whether `source` defines a function `name` (as `fn name(`).
+fn defines(source: &str, name: &str) -> bool {
+    source.contains(&format!("fn {name}("))
+}
+
+#[test]
+fn every_public_item_has_a_reference_check() {
+    let exported = exported_names(LIB_RS);
+    // The parser must see the whole list (the core exported 66 items when
+    // this test was written); a broken parser must not pass by seeing none.
+    assert!(
+        exported.len() >= 60,
+        "only {} names parsed from lib.rs: {exported:?}",
+        exported.len()
+    );
+    let listed: BTreeSet<String> = COVERAGE.iter().map(|(n, _)| n.to_string()).collect();
+    assert_eq!(listed.len(), COVERAGE.len(), "a name is listed twice");
+    let missing: Vec<_> = exported.difference(&listed).collect();
+    assert!(
+        missing.is_empty(),
+        "exported by core/src/lib.rs but with no reference check listed in tests/tests/coverage.rs: {missing:?}"
+    );
+    let stale: Vec<_> = listed.difference(&exported).collect();
+    assert!(
+        stale.is_empty(),
+        "listed in coverage.rs but no longer exported by lib.rs: {stale:?}"
+    );
+}
+
+#[test]
+fn every_named_test_exists() {
+    let mut references = 0;
+    for &(name, covered) in COVERAGE {
+        match covered {
+            Reference(file, test) => {
+                let source = TEST_FILES
+                    .iter()
+                    .find(|(f, _)| *f == file)
+                    .unwrap_or_else(|| panic!("{name}: no test file {file}.rs"))
+                    .1;
+                assert!(
+                    defines(source, test),
+                    "{name}: tests/tests/{file}.rs has no fn {test}"
+                );
+                references += 1;
+            }
+            Api(test) => assert!(
+                defines(ENGINE_RS, test),
+                "{name}: core/tests/engine.rs has no fn {test}"
+            ),
+            Format(why) => assert!(!why.is_empty(), "{name}: say why it holds no equation"),
+        }
+    }
+    // Most of the core is equations: at least 40 items have an outside
+    // reference (46 when this test was written).
+    assert!(references >= 40, "only {references} reference checks");
+}
+
+#[test]
+fn the_parser_reads_every_form_of_pub_use() {
+    // The forms lib.rs uses, and the two it might: exact sets, no tolerance.
+    let text = "pub use a::{B, c,\n    D};\n#[cfg(x)]\npub use e::f;\npub use g::h as i;";
+    let want: BTreeSet<String> = ["B", "c", "D", "f", "i"]
+        .iter()
+        .map(|s| s.to_string())
+        .collect();
+    assert_eq!(exported_names(text), want);
+}
