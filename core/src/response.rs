@@ -2,7 +2,7 @@
 //!
 //! Corners are found on the exact nodal response ([`crate::AcNetwork`]), not
 //! from time-constant estimates: a coarse logarithmic scan from 1 mHz to
-//! 1 THz (four points a decade) brackets each crossing, then the Illinois
+//! 1 THz (two points a decade) brackets each crossing, then the Illinois
 //! variant of regula falsi on (ln f, ln|H|) refines it to a relative error
 //! below 10⁻⁹.
 //!
@@ -26,7 +26,10 @@ pub const SEARCH_FROM: f64 = 1e-3;
 /// Highest frequency of the corner search, Hz.
 pub const SEARCH_TO: f64 = 1e12;
 /// Grid points per decade of the corner search.
-const SEARCH_PER_DECADE: usize = 4;
+/// The networks hold only resistors, capacitors and the controlled sources
+/// of one transistor, so their magnitude responses have no peaks or notches
+/// narrower than a decade: two points a decade bracket every crossing.
+const SEARCH_PER_DECADE: usize = 2;
 
 /// Most points in one sweep.
 pub const MAX_SWEEP_POINTS: usize = 100_000;
