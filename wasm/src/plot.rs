@@ -2,9 +2,9 @@
 //!
 //! Both entry points take the canvas element itself (it usually lives in a
 //! shadow root, where a look-up by id cannot find it) and a plain JavaScript
-//! object describing what to draw. Data arrays may be `Array`s or
-//! `Float64Array`s; `null`, `NaN` and infinities break a line rather than
-//! drawing it to the edge. Colours are CSS colours in `#rrggbb` or
+//! object describing what to draw, read key by key (missing keys take
+//! defaults). Data arrays may be `Array`s or `Float64Array`s; `null`, `NaN`
+//! and infinities break a line rather than drawing it to the edge. Colours are CSS colours in `#rrggbb` or
 //! `rgb[a](r, g, b[, a])` form, so the page can pass the resolved values of
 //! its CSS custom properties.
 //!
@@ -17,18 +17,17 @@ use std::fmt::Display;
 
 use plotters::coord::ranged1d::{DefaultFormatting, KeyPointHint};
 use plotters::coord::Shift;
+use plotters::element::DashedPathElement;
 use plotters::prelude::*;
+use plotters::style::text_anchor::{HPos, Pos, VPos};
 use plotters_canvas::CanvasBackend;
-use serde::Deserialize;
 use wasm_bindgen::prelude::*;
 use web_sys::HtmlCanvasElement;
 
-use crate::js::field_error;
+use crate::js::{field_error, Obj};
 use crate::ticks::{eng_label, linear_ticks, log_ticks, padded_range};
 
 /// Colours and type for one plot.
-#[derive(Deserialize)]
-#[serde(default)]
 struct Theme {
     /// Fill behind everything.
     background: String,
@@ -55,18 +54,17 @@ impl Default for Theme {
 }
 
 /// One named line of a frequency plot, sampled at the plot's frequencies.
-#[derive(Deserialize, Default)]
-#[serde(default)]
+#[derive(Default)]
 struct Series {
     name: String,
-    values: Vec<Option<f64>>,
+    /// One value per frequency; NaN is a gap.
+    values: Vec<f64>,
     color: String,
     dashed: bool,
 }
 
 /// A labelled vertical line (a corner frequency, say).
-#[derive(Deserialize, Default)]
-#[serde(default)]
+#[derive(Default)]
 struct XMarker {
     x: f64,
     label: String,
@@ -74,8 +72,7 @@ struct XMarker {
 }
 
 /// What `plot_frequency` draws.
-#[derive(Deserialize, Default)]
-#[serde(default)]
+#[derive(Default)]
 struct FrequencySpec {
     /// Frequencies in Hz, ascending, all > 0.
     freq: Vec<f64>,
@@ -95,8 +92,6 @@ struct FrequencySpec {
 }
 
 /// One curve of an x/y plot.
-#[derive(Deserialize)]
-#[serde(default)]
 struct Curve {
     /// Legend text; empty keeps the curve out of the legend.
     name: String,
@@ -122,20 +117,18 @@ impl Default for Curve {
 }
 
 /// A labelled point.
-#[derive(Deserialize, Default)]
-#[serde(default)]
+#[derive(Default)]
 struct Marker {
     x: f64,
     y: f64,
     label: String,
     color: String,
-    /// `"dot"` (default), `"ring"` or `"cross"`.
+    /// `"dot"` (default), `"ring"`, `"cross"` or `"none"` (label only).
     shape: String,
 }
 
 /// What `plot_xy` draws.
-#[derive(Deserialize, Default)]
-#[serde(default)]
+#[derive(Default)]
 struct XySpec {
     curves: Vec<Curve>,
     markers: Vec<Marker>,
@@ -151,6 +144,97 @@ struct XySpec {
     y_range: Option<[f64; 2]>,
     empty_text: String,
     theme: Theme,
+}
+
+impl Theme {
+    fn read(o: Option<Obj>) -> Self {
+        let d = Theme::default();
+        let Some(o) = o else { return d };
+        let or = |s: String, fb: String| if s.is_empty() { fb } else { s };
+        Theme {
+            background: or(o.str("background"), d.background),
+            foreground: or(o.str("foreground"), d.foreground),
+            grid: or(o.str("grid"), d.grid),
+            font_family: or(o.str("font_family"), d.font_family),
+            font_size: o.num("font_size").unwrap_or(d.font_size),
+        }
+    }
+}
+
+impl Series {
+    fn read(o: &Obj) -> Self {
+        Series {
+            name: o.str("name"),
+            values: o.numbers("values"),
+            color: o.str("color"),
+            dashed: o.flag("dashed"),
+        }
+    }
+}
+
+impl FrequencySpec {
+    fn read(o: &Obj) -> Self {
+        FrequencySpec {
+            freq: o.numbers("freq"),
+            series: o.list("series").iter().map(Series::read).collect(),
+            y_unit: o.str("y_unit"),
+            y_log: o.flag("y_log"),
+            phase: o.obj("phase").map(|p| Series::read(&p)),
+            x_markers: o
+                .list("x_markers")
+                .iter()
+                .map(|m| XMarker {
+                    x: m.num("x").unwrap_or(f64::NAN),
+                    label: m.str("label"),
+                    color: m.str("color"),
+                })
+                .collect(),
+            empty_text: o.str("empty_text"),
+            theme: Theme::read(o.obj("theme")),
+        }
+    }
+}
+
+impl XySpec {
+    fn read(o: &Obj) -> Self {
+        let range = |key: &str| {
+            let r = o.numbers(key);
+            (r.len() == 2).then(|| [r[0], r[1]])
+        };
+        XySpec {
+            curves: o
+                .list("curves")
+                .iter()
+                .map(|c| Curve {
+                    name: c.str("name"),
+                    x: c.numbers("x"),
+                    y: c.numbers("y"),
+                    color: c.str("color"),
+                    width: c.num("width").unwrap_or(1.5),
+                    dashed: c.flag("dashed"),
+                })
+                .collect(),
+            markers: o
+                .list("markers")
+                .iter()
+                .map(|m| Marker {
+                    x: m.num("x").unwrap_or(f64::NAN),
+                    y: m.num("y").unwrap_or(f64::NAN),
+                    label: m.str("label"),
+                    color: m.str("color"),
+                    shape: m.str("shape"),
+                })
+                .collect(),
+            x_name: o.str("x_name"),
+            y_name: o.str("y_name"),
+            x_unit: o.str("x_unit"),
+            y_unit: o.str("y_unit"),
+            x_range: range("x_range"),
+            y_range: range("y_range"),
+            empty_text: o.str("empty_text"),
+            theme: Theme::read(o.obj("theme")),
+        }
+    }
 }
 
 /// The only backend used: a canvas.
@@ -238,9 +322,25 @@ fn msg<E: Display>(e: E) -> String {
 }
 
 /// Sizes a canvas's backing store to its CSS box × `devicePixelRatio`
-/// (which also clears it). Returns the pixel ratio, or `None` when the
-/// canvas is not laid out (hidden), in which case nothing is drawn.
-fn fit(canvas: &HtmlCanvasElement) -> Option<f64> {
+/// (which also clears it), or to `spec.pixel_size` with
+/// `spec.pixel_ratio` when the page gives them. Returns the pixel ratio, or
+/// `None` when the canvas is not laid out (hidden), in which case nothing is
+/// drawn.
+fn fit(canvas: &HtmlCanvasElement, spec: &Obj) -> Option<f64> {
+    // The page may pass the size its ResizeObserver saw (device pixels of
+    // the content box), which spares a forced layout here.
+    let hint = spec.numbers("pixel_size");
+    let ratio = spec
+        .num("pixel_ratio")
+        .filter(|r| r.is_finite() && *r > 0.0);
+    if let ([w, h], Some(dpr)) = (hint.as_slice(), ratio) {
+        if *w >= 1.0 && *h >= 1.0 {
+            canvas.set_width(w.round() as u32);
+            canvas.set_height(h.round() as u32);
+            return Some(dpr);
+        }
+        return None;
+    }
     let dpr = web_sys::window()
         .map(|w| w.device_pixel_ratio())
         .filter(|r| r.is_finite() && *r > 0.0)
@@ -265,13 +365,14 @@ fn backend(canvas: &HtmlCanvasElement) -> Result<CanvasBackend, JsValue> {
 /// JS: `plot_frequency(canvas: HTMLCanvasElement, spec: {freq, series:
 /// [{name, values, color, dashed?}], y_unit, y_log?, phase?: {name, values,
 /// color}, x_markers?: [{x, label, color}], empty_text?, theme: {background,
-/// foreground, grid, font_family, font_size}}): boolean` — false when the
+/// foreground, grid, font_family, font_size}, pixel_size?: [w, h],
+/// pixel_ratio?}): boolean` — false when the
 /// canvas is hidden and nothing was drawn; throws `{field: "plot", message}`.
 #[wasm_bindgen]
 pub fn plot_frequency(canvas: &HtmlCanvasElement, spec: JsValue) -> Result<bool, JsValue> {
-    let spec: FrequencySpec =
-        serde_wasm_bindgen::from_value(spec).map_err(|e| field_error("plot", &msg(e)))?;
-    let Some(dpr) = fit(canvas) else {
+    let obj = Obj::new(spec);
+    let spec = FrequencySpec::read(&obj);
+    let Some(dpr) = fit(canvas, &obj) else {
         return Ok(false);
     };
     let root = backend(canvas)?.into_drawing_area();
@@ -285,14 +386,15 @@ pub fn plot_frequency(canvas: &HtmlCanvasElement, spec: JsValue) -> Result<bool,
 ///
 /// JS: `plot_xy(canvas: HTMLCanvasElement, spec: {curves: [{name, x, y,
 /// color, width?, dashed?}], markers?: [{x, y, label, color, shape?}],
-/// x_name, y_name, x_unit, y_unit, x_range?, y_range?, empty_text?, theme}):
+/// x_name, y_name, x_unit, y_unit, x_range?, y_range?, empty_text?, theme,
+/// pixel_size?: [w, h], pixel_ratio?}):
 /// boolean` — false when the canvas is hidden; throws `{field: "plot",
 /// message}`.
 #[wasm_bindgen]
 pub fn plot_xy(canvas: &HtmlCanvasElement, spec: JsValue) -> Result<bool, JsValue> {
-    let spec: XySpec =
-        serde_wasm_bindgen::from_value(spec).map_err(|e| field_error("plot", &msg(e)))?;
-    let Some(dpr) = fit(canvas) else {
+    let obj = Obj::new(spec);
+    let spec = XySpec::read(&obj);
+    let Some(dpr) = fit(canvas, &obj) else {
         return Ok(false);
     };
     let root = backend(canvas)?.into_drawing_area();
@@ -417,15 +519,13 @@ impl Look {
 
 /// Splits paired samples into runs of drawable points; a `None`, a
 /// non-finite value or (on a log axis) a value ≤ 0 ends a run.
-fn runs(xs: &[f64], ys: impl Iterator<Item = Option<f64>>, y_log: bool) -> Vec<Vec<(f64, f64)>> {
+fn runs(xs: &[f64], ys: &[f64], y_log: bool) -> Vec<Vec<(f64, f64)>> {
     let mut out = Vec::new();
     let mut cur = Vec::new();
-    for (x, y) in xs.iter().zip(ys) {
-        let ok = matches!(y, Some(v) if v.is_finite() && (!y_log || v > 0.0))
-            && x.is_finite()
-            && *x > 0.0;
+    for (&x, &y) in xs.iter().zip(ys) {
+        let ok = y.is_finite() && (!y_log || y > 0.0) && x.is_finite() && x > 0.0;
         if ok {
-            cur.push((*x, y.unwrap_or_default()));
+            cur.push((x, y));
         } else if !cur.is_empty() {
             out.push(std::mem::take(&mut cur));
         }
@@ -439,10 +539,7 @@ fn runs(xs: &[f64], ys: impl Iterator<Item = Option<f64>>, y_log: bool) -> Vec<V
 /// Writes `text` in the middle of an empty plot.
 fn draw_empty(root: &Area, look: &Look, text: &str) -> Result<(), String> {
     let (w, h) = root.dim_in_pixel();
-    let style = look.text().pos(plotters::style::text_anchor::Pos::new(
-        plotters::style::text_anchor::HPos::Center,
-        plotters::style::text_anchor::VPos::Center,
-    ));
+    let style = look.text().pos(Pos::new(HPos::Center, VPos::Center));
     root.draw_text(text, &style, (w as i32 / 2, h as i32 / 2))
         .map_err(msg)
 }
@@ -466,7 +563,7 @@ fn draw_frequency(root: &Area, spec: &FrequencySpec, dpr: f64) -> Result<(), Str
     let upper: Vec<Runs<'_>> = spec
         .series
         .iter()
-        .map(|s| (s, runs(&spec.freq, s.values.iter().copied(), spec.y_log)))
+        .map(|s| (s, runs(&spec.freq, &s.values, spec.y_log)))
         .collect();
     let has_upper = upper.iter().any(|(_, r)| !r.is_empty());
     if freq_hi <= freq_lo || !has_upper {
@@ -481,7 +578,7 @@ fn draw_frequency(root: &Area, spec: &FrequencySpec, dpr: f64) -> Result<(), Str
     let phase = spec
         .phase
         .as_ref()
-        .map(|p| (p, runs(&spec.freq, p.values.iter().copied(), false)))
+        .map(|p| (p, runs(&spec.freq, &p.values, false)))
         .filter(|(_, r)| !r.is_empty());
 
     let (_, height) = root.dim_in_pixel();
@@ -509,7 +606,7 @@ fn draw_frequency(root: &Area, spec: &FrequencySpec, dpr: f64) -> Result<(), Str
         }
     }
     let top_h = f64::from(top.dim_in_pixel().1) / look.dpr;
-    let y_target = (top_h / 38.0).floor().clamp(2.0, 8.0) as usize;
+    let y_target = (top_h / 30.0).floor().clamp(3.0, 9.0) as usize;
     // Room for the longest tick label, "−100 dB" or "100 kΩ".
     let y_area = look.text_width(7) + look.px(8.0);
     let upper_x_area = if bottom.is_some() {
@@ -640,13 +737,12 @@ fn lines(
         }
     }
 
-    let mut any_named = false;
+    let mut entries = Vec::new();
     for (s, rs) in series {
         let c = color(&s.color, look.fg);
         let style = look.line(c, 2.0);
-        let mut first = true;
         for run in rs {
-            let ann = if s.dashed {
+            if s.dashed {
                 chart
                     .draw_series(DashedLineSeries::new(
                         run.iter().copied(),
@@ -654,31 +750,155 @@ fn lines(
                         look.px(4.0),
                         style,
                     ))
-                    .map_err(msg)?
+                    .map_err(msg)?;
             } else {
                 chart
                     .draw_series(LineSeries::new(run.iter().copied(), style))
-                    .map_err(msg)?
-            };
-            if first && !s.name.is_empty() {
-                any_named = true;
-                let w = look.px(18.0);
-                ann.label(s.name.clone())
-                    .legend(move |(x, y)| PathElement::new(vec![(x, y), (x + w, y)], style));
+                    .map_err(msg)?;
             }
-            first = false;
+        }
+        if !s.name.is_empty() {
+            entries.push(Entry {
+                name: &s.name,
+                style,
+                dashed: s.dashed,
+            });
         }
     }
-    if any_named {
-        chart
-            .configure_series_labels()
-            .position(SeriesLabelPosition::UpperRight)
-            .background_style(look.bg.mix(0.88))
-            .border_style(look.line(look.grid, 1.0))
-            .label_font(look.small_text())
-            .margin(look.px(6.0))
-            .legend_area_size(look.px(24.0))
-            .draw()
+    if !entries.is_empty() {
+        let mut avoid = to_px(chart, series.iter().flat_map(|(_, rs)| rs.iter().cloned()));
+        for m in markers.iter().filter(|m| m.x.is_finite()) {
+            // The dashed line and its label at the top.
+            let (x, top) = chart.backend_coord(&(m.x, y_span.1));
+            let (_, bottom) = chart.backend_coord(&(m.x, y_span.0));
+            avoid.push(vec![(x, top), (x, bottom)]);
+            let label_w = look.text_width(m.label.chars().count()) + look.px(3.0);
+            avoid.push(vec![
+                (x, top + look.px(8.0)),
+                (x + label_w, top + look.px(8.0)),
+            ]);
+        }
+        legend(chart, look, &entries, &avoid)?;
+    }
+    Ok(())
+}
+
+/// Maps polylines in data coordinates to backing-store pixels.
+fn to_px(
+    chart: &Chart<'_>,
+    lines: impl IntoIterator<Item = Vec<(f64, f64)>>,
+) -> Vec<Vec<(i32, i32)>> {
+    lines
+        .into_iter()
+        .map(|l| l.iter().map(|p| chart.backend_coord(p)).collect())
+        .collect()
+}
+
+/// One line of a legend.
+struct Entry<'a> {
+    name: &'a str,
+    style: ShapeStyle,
+    dashed: bool,
+}
+
+/// Draws the legend in the corner (or edge middle) of the plot that the
+/// drawing crosses least. `avoid` holds the drawn polylines, points and
+/// label extents in backing-store pixels.
+///
+/// The legend is drawn here rather than by plotters, whose legend measures
+/// each label through the DOM (a forced layout per label, and a `style`
+/// attribute that a strict host CSP refuses); its width is estimated from
+/// the number of characters instead.
+fn legend(
+    chart: &mut Chart<'_>,
+    look: &Look,
+    entries: &[Entry<'_>],
+    avoid: &[Vec<(i32, i32)>],
+) -> Result<(), String> {
+    let (xr, yr) = chart.plotting_area().get_pixel_range();
+    let chars = entries
+        .iter()
+        .map(|e| e.name.chars().count())
+        .max()
+        .unwrap_or(0);
+    let pad = look.px(6.0);
+    let swatch = look.px(18.0);
+    let line_h = (look.font * 1.3).round() as i32;
+    let w = pad + swatch + look.px(6.0) + look.text_width(chars) * 92 / 100 + pad;
+    let h = entries.len() as i32 * line_h + pad;
+    let m = look.px(6.0);
+    let (left, right, top, bottom) = (xr.start + m, xr.end - m, yr.start + m, yr.end - m);
+    let mid = (xr.start + xr.end) / 2;
+    // Candidate places, in order of preference.
+    let spots = [
+        (right - w, top),
+        (left, top),
+        (right - w, bottom - h),
+        (left, bottom - h),
+        (mid - w / 2, top),
+        (mid - w / 2, bottom - h),
+    ];
+    // Sample every polyline about every 3 px and count samples per spot.
+    let mut hits = [0usize; 6];
+    let step = f64::from(look.px(3.0).max(1));
+    for px in avoid {
+        let mut count = |x: f64, y: f64| {
+            for (k, (sx, sy)) in spots.iter().enumerate() {
+                if x >= f64::from(*sx)
+                    && x <= f64::from(sx + w)
+                    && y >= f64::from(*sy)
+                    && y <= f64::from(sy + h)
+                {
+                    hits[k] += 1;
+                }
+            }
+        };
+        if px.len() == 1 {
+            count(f64::from(px[0].0), f64::from(px[0].1));
+        }
+        for pair in px.windows(2) {
+            let (a, b) = (pair[0], pair[1]);
+            let (dx, dy) = (f64::from(b.0 - a.0), f64::from(b.1 - a.1));
+            let n = ((dx.hypot(dy) / step).ceil() as usize).clamp(1, 2000);
+            for i in 0..=n {
+                let t = i as f64 / n as f64;
+                count(f64::from(a.0) + dx * t, f64::from(a.1) + dy * t);
+            }
+        }
+    }
+    let best = (0..spots.len()).min_by_key(|&k| hits[k]).unwrap_or(0);
+
+    // Draw in pixels relative to the plotting area.
+    let area = chart.plotting_area().strip_coord_spec();
+    let (bx, by) = area.get_base_pixel();
+    let (x0, y0) = (spots[best].0 - bx, spots[best].1 - by);
+    area.draw(&Rectangle::new(
+        [(x0, y0), (x0 + w, y0 + h)],
+        look.bg.mix(0.88).filled(),
+    ))
+    .map_err(msg)?;
+    area.draw(&Rectangle::new(
+        [(x0, y0), (x0 + w, y0 + h)],
+        look.line(look.grid, 1.0),
+    ))
+    .map_err(msg)?;
+    let text = look.small_text().pos(Pos::new(HPos::Left, VPos::Center));
+    for (i, e) in entries.iter().enumerate() {
+        let y = y0 + pad / 2 + line_h * i as i32 + line_h / 2;
+        let (sx0, sx1) = (x0 + pad, x0 + pad + swatch);
+        if e.dashed {
+            area.draw(&DashedPathElement::new(
+                [(sx0, y), (sx1, y)],
+                look.px(4.0),
+                look.px(3.0),
+                e.style,
+            ))
+            .map_err(msg)?;
+        } else {
+            area.draw(&PathElement::new(vec![(sx0, y), (sx1, y)], e.style))
+                .map_err(msg)?;
+        }
+        area.draw(&Text::new(e.name, (sx1 + look.px(6.0), y), text.clone()))
             .map_err(msg)?;
     }
     Ok(())
@@ -723,6 +943,10 @@ fn draw_xy(root: &Area, spec: &XySpec, dpr: f64) -> Result<(), String> {
     };
     let (y0, y1) = match spec.y_range {
         Some([a, b]) if finite(a, b) && b > a => (a, b),
+        // Headroom above the data for the legend.
+        _ if spec.curves.iter().any(|c| !c.name.is_empty()) => {
+            fit_axis(y0.min(0.0), y1 + (y1 - y0.min(0.0)) * 0.25)
+        }
         _ => fit_axis(y0.min(0.0), y1),
     };
 
@@ -756,15 +980,30 @@ fn draw_xy(root: &Area, spec: &XySpec, dpr: f64) -> Result<(), String> {
         .axis_style(look.line(look.fg.mix(0.75), 1.0))
         .set_all_tick_mark_size(look.px(3.0))
         .label_style(look.text())
-        .axis_desc_style(look.text())
-        .x_desc(spec.x_name.as_str())
-        .y_desc(spec.y_name.as_str())
         .x_label_formatter(&x_fmt)
         .y_label_formatter(&y_fmt)
         .draw()
         .map_err(msg)?;
 
-    let mut any_named = false;
+    // Axis names: x below its tick labels, y turned up beside them.
+    let (xr, yr) = chart.plotting_area().get_pixel_range();
+    if !spec.x_name.is_empty() {
+        let style = look.text().pos(Pos::new(HPos::Center, VPos::Bottom));
+        let at = ((xr.start + xr.end) / 2, h as i32 - look.px(2.0));
+        root.draw(&Text::new(spec.x_name.as_str(), at, style))
+            .map_err(msg)?;
+    }
+    if !spec.y_name.is_empty() {
+        let style = look
+            .text()
+            .transform(FontTransform::Rotate270)
+            .pos(Pos::new(HPos::Center, VPos::Top));
+        let at = (look.px(2.0), (yr.start + yr.end) / 2);
+        root.draw(&Text::new(spec.y_name.as_str(), at, style))
+            .map_err(msg)?;
+    }
+
+    let mut entries = Vec::new();
     for c in &spec.curves {
         let col = color(&c.color, look.fg);
         let style = look.line(col, if c.width > 0.0 { c.width } else { 1.5 });
@@ -778,9 +1017,8 @@ fn draw_xy(root: &Area, spec: &XySpec, dpr: f64) -> Result<(), String> {
                 segs.push(Vec::new());
             }
         }
-        let mut first = true;
         for seg in segs.into_iter().filter(|s| !s.is_empty()) {
-            let ann = if c.dashed {
+            if c.dashed {
                 chart
                     .draw_series(DashedLineSeries::new(
                         seg,
@@ -788,19 +1026,19 @@ fn draw_xy(root: &Area, spec: &XySpec, dpr: f64) -> Result<(), String> {
                         look.px(4.0),
                         style,
                     ))
-                    .map_err(msg)?
+                    .map_err(msg)?;
             } else {
                 chart
                     .draw_series(LineSeries::new(seg, style))
-                    .map_err(msg)?
-            };
-            if first && !c.name.is_empty() {
-                any_named = true;
-                let w = look.px(18.0);
-                ann.label(c.name.clone())
-                    .legend(move |(x, y)| PathElement::new(vec![(x, y), (x + w, y)], style));
+                    .map_err(msg)?;
             }
-            first = false;
+        }
+        if !c.name.is_empty() {
+            entries.push(Entry {
+                name: &c.name,
+                style,
+                dashed: c.dashed,
+            });
         }
     }
 
@@ -819,6 +1057,7 @@ fn draw_xy(root: &Area, spec: &XySpec, dpr: f64) -> Result<(), String> {
             "cross" => {
                 (EmptyElement::at(at) + Cross::new((0, 0), r, look.line(col, 2.0))).into_dyn()
             }
+            "none" => EmptyElement::at(at).into_dyn(),
             _ => (EmptyElement::at(at) + Circle::new((0, 0), r, col.filled())).into_dyn(),
         };
         chart.draw_series(std::iter::once(shape)).map_err(msg)?;
@@ -836,17 +1075,29 @@ fn draw_xy(root: &Area, spec: &XySpec, dpr: f64) -> Result<(), String> {
         }
     }
 
-    if any_named {
-        chart
-            .configure_series_labels()
-            .position(SeriesLabelPosition::UpperRight)
-            .background_style(look.bg.mix(0.88))
-            .border_style(look.line(look.grid, 1.0))
-            .label_font(look.small_text())
-            .margin(look.px(6.0))
-            .legend_area_size(look.px(24.0))
-            .draw()
-            .map_err(msg)?;
+    if !entries.is_empty() {
+        let mut avoid = to_px(
+            &chart,
+            spec.curves.iter().map(|c| {
+                c.x.iter()
+                    .copied()
+                    .zip(c.y.iter().copied())
+                    .filter(|(x, y)| finite(*x, *y))
+                    .collect()
+            }),
+        );
+        for m in spec.markers.iter().filter(|m| finite(m.x, m.y)) {
+            // The marker and its label, up and to the right of it.
+            let (x, y) = chart.backend_coord(&(m.x, m.y));
+            let label_y = y - r - look.font as i32 / 2;
+            let label_w = look.text_width(m.label.chars().count());
+            avoid.push(vec![(x, y)]);
+            avoid.push(vec![
+                (x + r, label_y),
+                (x + r + look.px(3.0) + label_w, label_y),
+            ]);
+        }
+        legend(&mut chart, &look, &entries, &avoid)?;
     }
     Ok(())
 }
@@ -885,16 +1136,9 @@ mod tests {
     #[test]
     fn runs_break_at_gaps() {
         let xs = [1.0, 2.0, 3.0, 4.0, 5.0];
-        let ys = [Some(1.0), None, Some(2.0), Some(f64::NAN), Some(3.0)];
-        let r = runs(&xs, ys.iter().copied(), false);
+        let r = runs(&xs, &[1.0, f64::NAN, 2.0, f64::INFINITY, 3.0], false);
         assert_eq!(r.len(), 3);
-        let r = runs(
-            &xs,
-            [Some(1.0), Some(-1.0), Some(1.0), Some(1.0), Some(1.0)]
-                .iter()
-                .copied(),
-            true,
-        );
+        let r = runs(&xs, &[1.0, -1.0, 1.0, 1.0, 1.0], true);
         assert_eq!(r.len(), 2);
     }
 }

@@ -1,0 +1,91 @@
+#!/usr/bin/env bash
+# Builds the web deliverables:
+#   dist/stagewright.html  self-contained page, opens from file:// offline
+#   dist/stagewright.js    embeddable classic script defining <stagewright-calc>
+#
+# Tools: rustup + cargo + node (>= 18). Steps: add the wasm target if
+# missing; install the wasm-bindgen CLI of exactly the version in Cargo.lock
+# if the one on PATH differs; `cargo build` the wasm crate with a
+# size-tuned release profile; `wasm-bindgen --target no-modules`; then
+# `node www/build.mjs` inlines everything and prints a size report.
+#
+# wasm-opt is never run: the Debian binaryen package produces modules that
+# fail at start-up. Nothing here calls it, and wasm-pack (which would) is
+# not used.
+set -euo pipefail
+
+cd "$(dirname "${BASH_SOURCE[0]}")/.."
+ROOT="$PWD"
+TARGET=wasm32-unknown-unknown
+TARGET_DIR="$ROOT/target/wasm"
+BINDGEN_OUT="$TARGET_DIR/bindgen"
+
+say() { printf '\n==> %s\n' "$*"; }
+
+export PATH="${CARGO_HOME:-$HOME/.cargo}/bin:$PATH"
+
+for tool in cargo rustup node; do
+  command -v "$tool" >/dev/null 2>&1 || { echo "build-web.sh: '$tool' is required but not on PATH" >&2; exit 1; }
+done
+
+# 1. The wasm target.
+if ! rustup target list --installed | grep -qx "$TARGET"; then
+  say "adding Rust target $TARGET"
+  rustup target add "$TARGET"
+fi
+
+# 2. The lock file decides the wasm-bindgen version; the CLI must match it.
+if [ ! -f Cargo.lock ]; then
+  say "creating Cargo.lock"
+  cargo generate-lockfile
+fi
+WB_VERSION="$(awk '
+  /^\[\[package\]\]/ { in_wb = 0 }
+  /^name = "wasm-bindgen"$/ { in_wb = 1; next }
+  in_wb && /^version = / { gsub(/version = |"/, ""); print; exit }
+' Cargo.lock)"
+if [ -z "$WB_VERSION" ]; then
+  # The lock file predates the wasm crate: let cargo add it.
+  cargo metadata --format-version 1 >/dev/null
+  WB_VERSION="$(awk '
+    /^\[\[package\]\]/ { in_wb = 0 }
+    /^name = "wasm-bindgen"$/ { in_wb = 1; next }
+    in_wb && /^version = / { gsub(/version = |"/, ""); print; exit }
+  ' Cargo.lock)"
+fi
+[ -n "$WB_VERSION" ] || { echo "build-web.sh: no wasm-bindgen in Cargo.lock" >&2; exit 1; }
+
+HAVE_WB="$(wasm-bindgen --version 2>/dev/null | awk '{print $2}' || true)"
+if [ "$HAVE_WB" != "$WB_VERSION" ]; then
+  say "installing wasm-bindgen-cli $WB_VERSION (found: ${HAVE_WB:-none})"
+  # No --locked: a locked dependency of the CLI is missing from some
+  # registry mirrors, and the install then fails.
+  cargo install wasm-bindgen-cli --version "$WB_VERSION"
+fi
+
+# 3. The wasm module, tuned for size. The root profile is shared with the
+# native builds, so the size settings come in through the environment.
+say "building stagewright-wasm for $TARGET"
+CARGO_PROFILE_RELEASE_OPT_LEVEL=z \
+CARGO_PROFILE_RELEASE_LTO=true \
+CARGO_PROFILE_RELEASE_CODEGEN_UNITS=1 \
+CARGO_PROFILE_RELEASE_PANIC=abort \
+CARGO_PROFILE_RELEASE_DEBUG=false \
+CARGO_PROFILE_RELEASE_INCREMENTAL=false \
+  cargo build -p stagewright-wasm --release --target "$TARGET" --target-dir "$TARGET_DIR"
+
+# 4. JavaScript glue for a classic script (no ES modules: file:// pages
+# cannot load modules or fetch the wasm).
+say "wasm-bindgen $WB_VERSION (no-modules)"
+rm -rf "$BINDGEN_OUT"
+wasm-bindgen "$TARGET_DIR/$TARGET/release/stagewright_wasm.wasm" \
+  --out-dir "$BINDGEN_OUT" \
+  --target no-modules \
+  --no-typescript \
+  --omit-default-module-path \
+  --remove-name-section \
+  --remove-producers-section
+
+# 5. One page and one script.
+say "assembling dist/"
+node www/build.mjs --bindgen "$BINDGEN_OUT" --out "$ROOT/dist"

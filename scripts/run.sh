@@ -1,0 +1,17 @@
+#!/usr/bin/env bash
+# Builds the calculator (dist/stagewright.html and dist/stagewright.js) and the
+# command line, prints where the calculator is (opening it when a desktop is
+# available), then analyses an example design.
+set -euo pipefail
+cd "$(dirname "$0")/.."
+
+bash scripts/build-web.sh
+page="$PWD/dist/stagewright.html"
+echo
+echo "calculator: file://$page"
+if [ -n "${DISPLAY:-}${WAYLAND_DISPLAY:-}" ] && command -v xdg-open >/dev/null 2>&1; then
+  xdg-open "$page" >/dev/null 2>&1 || true
+fi
+echo
+cargo build --release -q -p stagewright --bin stagewright
+./target/release/stagewright analyze examples/transducer-gain-stage.json

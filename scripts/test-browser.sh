@@ -1,0 +1,38 @@
+#!/usr/bin/env bash
+# Browser tests: opens dist/stagewright.html (from file://) and
+# dist/stagewright.js (on pages served inside the browser) in Debian's
+# Chromium through playwright-core, with `node --test`.
+#
+# Installs Chromium from Debian packages when /usr/bin/chromium is missing
+# (never a tool's own browser download), installs the test dependency
+# (playwright-core only), builds dist/ if it is missing, and runs the tests.
+# Screenshots land in tests/browser/artifacts/ (not committed).
+set -euo pipefail
+
+cd "$(dirname "${BASH_SOURCE[0]}")/.."
+ROOT="$PWD"
+
+if [ ! -x /usr/bin/chromium ]; then
+  echo "==> installing Chromium (Debian packages)"
+  SUDO=""
+  if [ "$(id -u)" -ne 0 ]; then SUDO="sudo"; fi
+  $SUDO apt-get update
+  $SUDO env DEBIAN_FRONTEND=noninteractive apt-get install -y chromium chromium-driver
+fi
+
+if [ ! -f dist/stagewright.html ] || [ ! -f dist/stagewright.js ]; then
+  echo "==> dist/ is missing: building it"
+  bash scripts/build-web.sh
+fi
+
+cd "$ROOT/tests/browser"
+echo "==> installing test dependencies"
+if [ -f package-lock.json ]; then
+  npm ci --no-audit --no-fund
+else
+  npm install --no-audit --no-fund
+fi
+
+echo "==> running browser tests"
+mkdir -p artifacts
+node --test --test-concurrency=1

@@ -1,0 +1,227 @@
+// dist/stagewright.js on a host page, as a wiki would serve it. Pages are
+// answered by a route handler for https://wiki.example/ inside the browser,
+// so nothing leaves the machine.
+
+import assert from "node:assert/strict";
+import { readFileSync } from "node:fs";
+import path from "node:path";
+import { after, before, describe, test } from "node:test";
+import { fileURLToPath } from "node:url";
+
+import { launch, scriptPath, screenshot } from "./helpers.mjs";
+
+const here = path.dirname(fileURLToPath(import.meta.url));
+const ORIGIN = "https://wiki.example";
+const script = readFileSync(scriptPath);
+
+const design = (title, extra = {}) => ({
+  format: "stagewright/1",
+  title,
+  stage: "common-emitter",
+  supply: 12,
+  transistor: { preset: "general-purpose-npn" },
+  parts: { r1: "47k", r2: "10k", rc: "3k9", re: "220", re_bypassed: "680", c_emitter: "100u", rs: "600", rl: "10k", c_in: "1u", c_out: "4u7" },
+  ...extra,
+});
+
+const b64url = (obj) => Buffer.from(JSON.stringify(obj)).toString("base64url");
+
+/** Serves `pages` (path -> {html, csp}) and the script under ORIGIN. */
+async function serve(context, pages) {
+  await context.route(`${ORIGIN}/**`, (route) => {
+    const url = new URL(route.request().url());
+    if (url.pathname === "/stagewright.js") {
+      return route.fulfill({ status: 200, contentType: "text/javascript", body: script });
+    }
+    const page = pages[url.pathname];
+    if (!page) return route.fulfill({ status: 404, body: "not here" });
+    const headers = { "content-type": "text/html; charset=utf-8" };
+    if (page.csp) headers["content-security-policy"] = page.csp;
+    return route.fulfill({ status: 200, headers, body: page.html });
+  });
+}
+
+function onlyWiki(requests) {
+  return requests.filter((u) => !u.startsWith(`${ORIGIN}/`) && !/^(data|blob|about):/.test(u));
+}
+
+async function understood(page, selector) {
+  await page.waitForFunction((sel) => {
+    const el = document.querySelector(sel);
+    const out = el && el.shadowRoot && el.shadowRoot.querySelector(".field[data-key='rc'] .understood");
+    return !!(out && out.textContent.includes("kΩ"));
+  }, selector, { timeout: 15000 });
+}
+
+const page = (head, body) =>
+  `<!doctype html><html lang="en"><head><meta charset="utf-8"><title>Team wiki</title>${head}</head>` +
+  `<body><h1>Bias network review</h1>${body}</body></html>`;
+
+describe("embedding dist/stagewright.js", () => {
+  let browser;
+
+  before(async () => {
+    browser = await launch({ viewport: { width: 1280, height: 900 } });
+    await serve(browser.context, {
+      "/twice.html": {
+        html: page(
+          '<script src="/stagewright.js"></script><script src="/stagewright.js"></script>',
+          `<stagewright-calc id="first"><script type="application/json">${JSON.stringify(design("First stage"))}</script></stagewright-calc>` +
+            `<p>The placeholder below is what a wiki that strips unknown tags keeps:</p>` +
+            `<div data-stagewright data-design="${b64url(design("Second stage", { stage: "common-collector" }))}"></div>` +
+            '<script src="/stagewright.js"></script>',
+        ),
+      },
+      "/csp.html": {
+        csp: "script-src 'self' 'wasm-unsafe-eval'",
+        html: page("", `<stagewright-calc compact><script type="application/json">${JSON.stringify(design("Under a policy"))}</script></stagewright-calc><script src="/stagewright.js"></script>`),
+      },
+      "/csp-strict.html": {
+        csp: "default-src 'self'; script-src 'self' 'wasm-unsafe-eval'; style-src 'self'; img-src 'self'",
+        html: page("", '<stagewright-calc></stagewright-calc><script src="/stagewright.js"></script>'),
+      },
+      "/csp-no-wasm.html": {
+        csp: "script-src 'self'",
+        html: page("", '<stagewright-calc></stagewright-calc><script src="/stagewright.js"></script>'),
+      },
+      "/late.html": {
+        html: page('<script src="/stagewright.js"></script>', '<div id="slot"></div>'),
+      },
+    });
+  });
+
+  after(async () => {
+    await browser.close();
+  });
+
+  test("loading the script twice is harmless; inline JSON and placeholders both work", async () => {
+    const p = await browser.context.newPage();
+    await p.goto(`${ORIGIN}/twice.html`);
+    await understood(p, "#first");
+    await understood(p, "div[data-stagewright] stagewright-calc");
+    const seen = await p.evaluate(() => {
+      const all = Array.from(document.querySelectorAll("stagewright-calc"));
+      return {
+        count: all.length,
+        titles: all.map((el) => el.design && el.design.title),
+        stages: all.map((el) => el.design && el.design.stage),
+        defined: typeof customElements.get("stagewright-calc"),
+        globals: ["wasm_bindgen", "STAGEWRIGHT_CSS", "StagewrightCalc", "loadEngine"].filter((g) => g in window),
+        subscripts: all.map((el) => el.shadowRoot.querySelectorAll(".quantities sub").length),
+      };
+    });
+    assert.ok(seen.subscripts[0] > 10 && seen.subscripts[0] === seen.subscripts[1], "each element has its own symbols");
+    delete seen.subscripts;
+    assert.deepEqual(seen, {
+      count: 2,
+      titles: ["First stage", "Second stage"],
+      stages: ["common-emitter", "common-collector"],
+      defined: "function",
+      globals: [],
+    });
+    assert.deepEqual(browser.errors, []);
+    assert.deepEqual(onlyWiki(browser.requests), []);
+    await screenshot(p, "embed-twice.png");
+    await p.close();
+  });
+
+  test("works under Content-Security-Policy: script-src 'self' 'wasm-unsafe-eval'", async () => {
+    const p = await browser.context.newPage();
+    await p.goto(`${ORIGIN}/csp.html`);
+    await understood(p, "stagewright-calc");
+    const input = p.locator("stagewright-calc .field[data-key='rc'] input");
+    await p.locator("stagewright-calc details.design-box > summary").click();
+    await input.fill("4k7");
+    await p.locator("stagewright-calc .field[data-key='rc'] .understood", { hasText: "4.7 kΩ" }).waitFor({ timeout: 2000 });
+    assert.deepEqual(browser.errors, []);
+    await screenshot(p, "embed-csp.png");
+    await p.close();
+  });
+
+  test("works under a strict policy that also limits styles", async () => {
+    const p = await browser.context.newPage();
+    await p.goto(`${ORIGIN}/csp-strict.html`);
+    await understood(p, "stagewright-calc");
+    const radius = await p.evaluate(() => {
+      const frame = document.querySelector("stagewright-calc").shadowRoot.querySelector(".frame");
+      return getComputedStyle(frame).borderTopLeftRadius;
+    });
+    assert.notEqual(radius, "0px", "the element's styles apply");
+    assert.deepEqual(browser.errors, []);
+    await p.close();
+  });
+
+  test("without 'wasm-unsafe-eval' the page says what the policy needs", async () => {
+    const p = await browser.context.newPage();
+    const before = browser.errors.length;
+    await p.goto(`${ORIGIN}/csp-no-wasm.html`);
+    const banner = p.locator("stagewright-calc .banner.error");
+    await banner.waitFor({ state: "visible", timeout: 15000 });
+    assert.match(await banner.textContent(), /'wasm-unsafe-eval'/);
+    browser.errors.splice(before); // the refused compile is expected here
+    await p.close();
+  });
+
+  test("placeholders added later (a router swapping pages) are upgraded; the API works", async () => {
+    const p = await browser.context.newPage();
+    await p.goto(`${ORIGIN}/late.html`);
+    await p.evaluate((d) => {
+      const div = document.createElement("div");
+      div.setAttribute("data-stagewright", "");
+      div.setAttribute("data-readonly", "");
+      div.textContent = JSON.stringify(d);
+      document.getElementById("slot").append(div);
+    }, design("Added later"));
+    await understood(p, "#slot stagewright-calc");
+    const api = await p.evaluate(async () => {
+      const el = document.querySelector("#slot stagewright-calc");
+      const events = [];
+      document.addEventListener("stagewright-design", (e) => events.push({ bubbles: e.bubbles, composed: e.composed, title: e.detail.design.title }));
+      el.design = { format: "stagewright/1", title: "Set by script", stage: "common-base", supply: 5, parts: { rc: "1k" } };
+      // Moving the element (as a router would) keeps it working.
+      const host = document.createElement("section");
+      document.body.append(host);
+      host.append(el);
+      await new Promise((r) => setTimeout(r, 50));
+      return {
+        title: el.design.title,
+        stage: el.design.stage,
+        readonly: el.shadowRoot.querySelector("input[name=rc]").readOnly,
+        report: el.report,
+        events,
+        text: el.shadowRoot.querySelector("h2.title").textContent,
+      };
+    });
+    assert.equal(api.title, "Set by script");
+    assert.equal(api.stage, "common-base");
+    assert.equal(api.readonly, true);
+    assert.equal(api.text, "Set by script");
+    assert.deepEqual(api.events[0], { bubbles: true, composed: true, title: "Set by script" });
+    assert.deepEqual(browser.errors, []);
+    await p.close();
+  });
+
+  test("the share panel offers the three embed recipes and the CSP line", async () => {
+    const p = await browser.context.newPage();
+    await p.goto(`${ORIGIN}/twice.html`);
+    await understood(p, "#first");
+    await p.locator("#first details.share > summary").click();
+    const snippets = await p.evaluate(() => {
+      const root = document.querySelector("#first").shadowRoot;
+      return {
+        texts: Array.from(root.querySelectorAll("textarea.snippet")).map((t) => t.value),
+        csp: root.querySelector(".csp").textContent,
+      };
+    });
+    assert.equal(snippets.texts.length, 3);
+    assert.match(snippets.texts[0], /<script src="https:\/\/wiki\.example\/stagewright\.js"><\/script>\n<stagewright-calc>/);
+    assert.match(snippets.texts[0], /"title": "First stage"/);
+    assert.match(snippets.texts[1], /^<iframe src="[^"]*#design=[A-Za-z0-9_-]+"/);
+    assert.match(snippets.texts[2], /^<div data-stagewright data-design="[A-Za-z0-9_-]+"><\/div>/);
+    assert.equal(snippets.csp, "Content-Security-Policy: script-src 'self' 'wasm-unsafe-eval'");
+    // On a host page a link could not reopen the design: no "Copy link".
+    assert.equal(await p.locator("#first button.linking").isVisible(), false);
+    await p.locator("#first").screenshot({ path: path.join(here, "artifacts", "share-panel.png") });
+    await p.close();
+  });
+});

@@ -1,0 +1,94 @@
+// Shared set-up for the browser tests: Debian's Chromium through
+// playwright-core, a fresh profile per browser (deleted afterwards), and a
+// record of every request the page makes.
+
+import { mkdirSync, mkdtempSync, rmSync } from "node:fs";
+import os from "node:os";
+import path from "node:path";
+import { fileURLToPath, pathToFileURL } from "node:url";
+import { chromium } from "playwright-core";
+
+const here = path.dirname(fileURLToPath(import.meta.url));
+export const root = path.resolve(here, "..", "..");
+export const dist = path.join(root, "dist");
+export const artifacts = path.join(here, "artifacts");
+export const htmlUrl = pathToFileURL(path.join(dist, "stagewright.html")).href;
+export const scriptPath = path.join(dist, "stagewright.js");
+
+const CHROMIUM = process.env.CHROMIUM || "/usr/bin/chromium";
+const FLAGS = [
+  "--no-sandbox",
+  "--disable-gpu",
+  "--disable-quic",
+  "--no-first-run",
+  "--disable-background-networking",
+  "--disable-component-update",
+  "--disable-sync",
+  "--host-resolver-rules=MAP * ~NOTFOUND",
+];
+
+/** Starts Chromium with a new profile. Returns {context, requests, close}.
+ * `requests` lists every request URL any page of the context made. */
+export async function launch(options = {}) {
+  const profile = mkdtempSync(path.join(os.tmpdir(), "stagewright-chromium-"));
+  const context = await chromium.launchPersistentContext(profile, {
+    executablePath: CHROMIUM,
+    headless: true,
+    args: FLAGS,
+    viewport: options.viewport || { width: 1400, height: 1000 },
+    deviceScaleFactor: options.deviceScaleFactor || 1,
+    colorScheme: options.colorScheme || "light",
+    serviceWorkers: "block",
+  });
+  const requests = [];
+  context.on("request", (r) => requests.push(r.url()));
+  const errors = [];
+  const watch = (page) => {
+    page.on("pageerror", (e) => errors.push(String(e)));
+    page.on("console", (m) => {
+      if (m.type() === "error") errors.push(m.text());
+    });
+    page.on("dialog", (d) => {
+      errors.push(`dialog: ${d.message()}`);
+      d.dismiss().catch(() => {});
+    });
+  };
+  context.on("page", watch);
+  for (const p of context.pages()) watch(p);
+  return {
+    context,
+    requests,
+    errors,
+    async page() {
+      const pages = context.pages();
+      const page = pages.length ? pages[0] : await context.newPage();
+      return page;
+    },
+    async close() {
+      await context.close();
+      rmSync(profile, { recursive: true, force: true });
+    },
+  };
+}
+
+/** Requests that left the machine or could have: anything but file:,
+ * data:, blob: and about:. */
+export function networkRequests(urls) {
+  return urls.filter((u) => !/^(file|data|blob|about):/.test(u));
+}
+
+/** Waits until the element's engine has started (understood values show). */
+export async function waitReady(page, selector = "stagewright-calc") {
+  await page.waitForFunction((sel) => {
+    const el = document.querySelector(sel);
+    const out = el && el.shadowRoot && el.shadowRoot.querySelector(".field[data-key='rc'] .understood");
+    return !!(out && out.textContent.trim());
+  }, selector, { timeout: 15000 });
+}
+
+export async function screenshot(page, name, options = {}) {
+  mkdirSync(artifacts, { recursive: true });
+  const file = path.join(artifacts, name);
+  await page.screenshot({ path: file, fullPage: true, ...options });
+  return file;
+}

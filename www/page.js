@@ -1,0 +1,45 @@
+/* Standalone page: the design lives in the address, as #design=<base64url
+ * of the design JSON>, so a copied address reopens the same design. */
+(function () {
+  "use strict";
+  var el = document.querySelector("stagewright-calc[page]");
+  var Calc = window.customElements && window.customElements.get("stagewright-calc");
+  if (!el || !Calc) return;
+  var written = "";
+
+  function fromHash() {
+    var m = /^#design=(.+)$/.exec(location.hash);
+    if (!m || location.hash === written) return;
+    written = location.hash;
+    el.design = m[1];
+  }
+
+  // The address follows the design a moment after typing stops.
+  var pending = null;
+  var timer = 0;
+  function write() {
+    timer = 0;
+    var design = pending;
+    pending = null;
+    var hash = "#design=" + Calc.encodeDesign(design);
+    if (hash !== location.hash) {
+      written = hash;
+      history.replaceState(history.state, "", hash);
+    }
+    document.title = (typeof design.title === "string" && design.title ? design.title + " · " : "") + "Stagewright";
+  }
+  el.addEventListener("stagewright-design", function (e) {
+    if (!e.detail || !e.detail.design) return;
+    pending = e.detail.design;
+    if (!timer) timer = setTimeout(write, 250);
+  });
+  window.addEventListener("pagehide", function () {
+    if (timer) {
+      clearTimeout(timer);
+      write();
+    }
+  });
+
+  window.addEventListener("hashchange", fromHash);
+  fromHash();
+})();
