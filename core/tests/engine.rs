@@ -563,3 +563,54 @@ fn requirements_pass_and_fail() {
         "20·log10 twice (libm and std): one rounding each",
     );
 }
+
+// ---------------------------------------------------------------------------
+// Load lines
+// ---------------------------------------------------------------------------
+
+/// The characteristic drawn for the quiescent base current passes through
+/// the quiescent point, and the DC load line passes through it too.
+#[test]
+fn load_line_quiescent_curve_passes_through_q() {
+    let s = example();
+    let a = analyze(&s).unwrap();
+    let ll = stagewright::load_lines(&s, &a, 6, 400);
+    let op = &a.operating_point;
+    // With 6 curves the base currents are IBQ·k/3, k = 1..6: the third is IBQ.
+    let q_curve = &ll.characteristics[2];
+    close(
+        "quiescent curve IB",
+        q_curve.ib,
+        op.ib,
+        1e-12,
+        "IBQ·3/3, rounding only",
+    );
+    // The model re-solved at (IBQ, VCEQ) must give ICQ: the same equations
+    // by another route (a 1-D Newton on IB instead of the stage solve), so
+    // agreement to the Newton tolerance (1e-9 relative).
+    let ic = op.device.ic_at_ib(op.ib, op.vce.abs()).unwrap();
+    close(
+        "IC on the quiescent curve at VCEQ",
+        ic,
+        op.ic,
+        1e-9,
+        "two solves of one model",
+    );
+    // formula: VCE = VCC − IC·Rdc at Q (α-corrected RE): the DC line passes
+    // through Q to rounding.
+    let (v0, i0) = ll.dc_line[0];
+    let (v1, _) = ll.dc_line[1];
+    let on_line = i0 * (1.0 - op.vce.abs() / v1);
+    close(
+        "DC load line at VCEQ",
+        on_line,
+        op.ic,
+        1e-9,
+        "straight line through Q",
+    );
+    assert_eq!(v0, 0.0, "the DC line starts at VCE = 0");
+    assert!(ll
+        .characteristics
+        .iter()
+        .all(|c| c.vce.len() == c.ic.len() && !c.vce.is_empty()));
+}

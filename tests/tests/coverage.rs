@@ -51,6 +51,19 @@ const COVERAGE: &[(&str, Covered)] = &[
         Reference("textbook", "boylestad_nashelsky_5_2_bypassed_ce"),
     ),
     ("Options", Api("options_leave_out_bandwidth_and_stability")),
+    // load lines
+    (
+        "load_lines",
+        Reference("textbook", "malvino_bates_12_1_to_12_4_ac_load_line"),
+    ),
+    (
+        "LoadLines",
+        Reference("textbook", "malvino_bates_12_1_to_12_4_ac_load_line"),
+    ),
+    (
+        "Characteristic",
+        Api("load_line_quiescent_curve_passes_through_q"),
+    ),
     // constants
     (
         "thermal_voltage",

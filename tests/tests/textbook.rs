@@ -245,6 +245,7 @@ fn malvino_bates_12_1_to_12_4_ac_load_line() {
     let a = run(SOURCE, &s);
     let op = &a.operating_point;
     let sw = &a.swing;
+    let ll = stagewright::load_lines(&s, &a, 6, 50);
     let rows = [
         ("ICQ", op.ic, 0.147, allowed::MALVINO_12_ICQ),
         ("VCEQ", op.vce, 9.0, allowed::MALVINO_12_VCEQ),
@@ -263,6 +264,19 @@ fn malvino_bates_12_1_to_12_4_ac_load_line() {
         (
             "vce(cut)",
             op.vce + sw.positive,
+            19.7,
+            allowed::MALVINO_12_LINE_ENDS,
+        ),
+        // The plotted AC load line has the same ends.
+        (
+            "load-line plot: AC line at VCE = 0",
+            ll.ac_line[0].1,
+            0.273,
+            allowed::MALVINO_12_LINE_ENDS,
+        ),
+        (
+            "load-line plot: AC line at IC = 0",
+            ll.ac_line[1].0,
             19.7,
             allowed::MALVINO_12_LINE_ENDS,
         ),
