@@ -85,6 +85,7 @@ mod midband;
 mod nodal;
 mod operating_point;
 mod presets;
+mod random;
 mod ratings;
 #[cfg(feature = "serde")]
 mod report;
@@ -92,6 +93,8 @@ mod requirements;
 mod response;
 mod stage;
 mod swing;
+mod synthesis;
+mod tolerance;
 mod transistor;
 mod value;
 
@@ -123,6 +126,15 @@ pub use requirements::Requirements;
 pub use response::{log_frequencies, Bandwidth, Response, SEARCH_FROM, SEARCH_TO};
 pub use stage::{Parts, Stage, StageKind, DEFAULT_RESISTOR_RATING, MAX_SUPPLY};
 pub use swing::Swing;
+pub use synthesis::{
+    synthesize, Bias, Difference, PartChoice, PinnedParts, Series, Spec, Synthesis, Target,
+    DEFAULT_EMITTER_FRACTION, DEFAULT_F_LOW, DEFAULT_SATURATION_RESERVE, DEFAULT_STIFFNESS,
+};
+pub use tolerance::{
+    sensitivity, tolerance_analysis, worst_case, Corner, Distribution, Extreme, Histogram, Level,
+    MonteCarlo, MonteCarloSummary, Parameter, Quantity, RequirementYield, Sensitivity, Setting,
+    ToleranceReport, Tolerances, WorstCase, DEFAULT_TRIALS,
+};
 pub use transistor::{
     Currents, Device, Polarity, TransistorData, CJC_BUILT_IN, CJC_GRADING, DEFAULT_BETA_REVERSE,
     DEFAULT_XTB, SILICON_EG, SILICON_XTI, TEST_VCE,

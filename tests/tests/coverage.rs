@@ -27,9 +27,14 @@ enum Covered {
     Api(&'static str),
     /// Why the item holds no equation.
     Format(&'static str),
+    /// (module in `core/src/`, without `.rs`; unit test function there): the
+    /// design-to-requirement and tolerance items, whose checks (the
+    /// synthesised grid re-analysed, Malvino & Bates' centred point, samples
+    /// inside the worst-case bounds, seeds) live beside the code.
+    Unit(&'static str, &'static str),
 }
 
-use Covered::{Api, Format, Reference};
+use Covered::{Api, Format, Reference, Unit};
 
 const DESIGN_FILE: &str =
     "design-file reader: reads values and calls the checked items; no equation";
@@ -51,6 +56,162 @@ const COVERAGE: &[(&str, Covered)] = &[
         Reference("textbook", "boylestad_nashelsky_5_2_bypassed_ce"),
     ),
     ("Options", Api("options_leave_out_bandwidth_and_stability")),
+    // design to a requirement, tolerance analysis (unit tests beside the code)
+    (
+        "synthesize",
+        Unit("synthesis", "every_design_of_a_grid_meets_its_requirements"),
+    ),
+    ("Bias", Unit("synthesis", "a_given_current_is_centred")),
+    (
+        "Difference",
+        Unit("synthesis", "snapped_design_reports_its_differences"),
+    ),
+    (
+        "PartChoice",
+        Unit("synthesis", "snapped_design_reports_its_differences"),
+    ),
+    (
+        "PinnedParts",
+        Unit(
+            "synthesis",
+            "pinned_parts_are_kept_and_the_rest_is_solved_around_them",
+        ),
+    ),
+    (
+        "Series",
+        Unit("synthesis", "the_tolerances_follow_the_series"),
+    ),
+    (
+        "Spec",
+        Unit("synthesis", "specification_errors_name_the_field"),
+    ),
+    (
+        "Synthesis",
+        Unit("synthesis", "every_design_of_a_grid_meets_its_requirements"),
+    ),
+    (
+        "Target",
+        Unit("synthesis", "every_design_of_a_grid_meets_its_requirements"),
+    ),
+    (
+        "DEFAULT_EMITTER_FRACTION",
+        Unit("synthesis", "every_design_of_a_grid_meets_its_requirements"),
+    ),
+    (
+        "DEFAULT_F_LOW",
+        Unit("synthesis", "the_capacitors_share_the_lower_corner"),
+    ),
+    (
+        "DEFAULT_SATURATION_RESERVE",
+        Unit("synthesis", "every_design_of_a_grid_meets_its_requirements"),
+    ),
+    (
+        "DEFAULT_STIFFNESS",
+        Unit("synthesis", "every_design_of_a_grid_meets_its_requirements"),
+    ),
+    (
+        "sensitivity",
+        Unit("tolerance", "emitter_resistance_sets_the_collector_current"),
+    ),
+    (
+        "tolerance_analysis",
+        Unit(
+            "tolerance",
+            "monte_carlo_samples_lie_inside_the_worst_case_bounds",
+        ),
+    ),
+    (
+        "worst_case",
+        Unit("tolerance", "worst_case_corners_point_the_right_way"),
+    ),
+    (
+        "Corner",
+        Unit("tolerance", "worst_case_corners_point_the_right_way"),
+    ),
+    (
+        "Distribution",
+        Unit(
+            "tolerance",
+            "log_uniform_hfe_has_its_median_at_the_geometric_middle",
+        ),
+    ),
+    (
+        "Extreme",
+        Unit(
+            "tolerance",
+            "monte_carlo_samples_lie_inside_the_worst_case_bounds",
+        ),
+    ),
+    (
+        "Histogram",
+        Unit(
+            "tolerance",
+            "percentiles_interpolate_between_order_statistics",
+        ),
+    ),
+    (
+        "Level",
+        Unit("tolerance", "worst_case_corners_point_the_right_way"),
+    ),
+    (
+        "MonteCarlo",
+        Unit("tolerance", "the_same_seed_gives_the_same_numbers"),
+    ),
+    (
+        "MonteCarloSummary",
+        Unit(
+            "tolerance",
+            "yield_counts_the_trials_that_meet_every_requirement",
+        ),
+    ),
+    (
+        "Parameter",
+        Unit("tolerance", "emitter_resistance_sets_the_collector_current"),
+    ),
+    (
+        "Quantity",
+        Unit(
+            "tolerance",
+            "monte_carlo_samples_lie_inside_the_worst_case_bounds",
+        ),
+    ),
+    (
+        "RequirementYield",
+        Unit(
+            "tolerance",
+            "yield_counts_the_trials_that_meet_every_requirement",
+        ),
+    ),
+    (
+        "Sensitivity",
+        Unit("tolerance", "emitter_resistance_sets_the_collector_current"),
+    ),
+    (
+        "Setting",
+        Unit("tolerance", "worst_case_corners_point_the_right_way"),
+    ),
+    (
+        "ToleranceReport",
+        Unit(
+            "tolerance",
+            "monte_carlo_samples_lie_inside_the_worst_case_bounds",
+        ),
+    ),
+    (
+        "Tolerances",
+        Unit("tolerance", "tolerance_errors_name_the_field"),
+    ),
+    (
+        "WorstCase",
+        Unit(
+            "tolerance",
+            "worst_case_ic_spread_of_a_stiff_divider_is_modest",
+        ),
+    ),
+    (
+        "DEFAULT_TRIALS",
+        Unit("tolerance", "the_same_seed_gives_the_same_numbers"),
+    ),
     // load lines
     (
         "load_lines",
@@ -322,6 +483,12 @@ const TEST_FILES: &[(&str, &str)] = &[
 /// The integration binary of the core.
 const ENGINE_RS: &str = include_str!("../../core/tests/engine.rs");
 
+/// The core modules whose unit tests cover exported items.
+const CORE_MODULES: &[(&str, &str)] = &[
+    ("synthesis", include_str!("../../core/src/synthesis.rs")),
+    ("tolerance", include_str!("../../core/src/tolerance.rs")),
+];
+
 /// The names of every `pub use` item of `lib`: `pub use a::{B, c};` and
 /// `pub use a::b;` and `pub use a::b as c;`, over any number of lines.
 fn exported_names(lib: &str) -> BTreeSet<String> {
@@ -402,6 +569,17 @@ fn every_named_test_exists() {
                 "{name}: core/tests/engine.rs has no fn {test}"
             ),
             Format(why) => assert!(!why.is_empty(), "{name}: say why it holds no equation"),
+            Unit(module, test) => {
+                let source = CORE_MODULES
+                    .iter()
+                    .find(|(m, _)| *m == module)
+                    .unwrap_or_else(|| panic!("{name}: no core module {module}.rs listed"))
+                    .1;
+                assert!(
+                    defines(source, test),
+                    "{name}: core/src/{module}.rs has no fn {test}"
+                );
+            }
         }
     }
     // Most of the core is equations: at least 40 items have an outside
