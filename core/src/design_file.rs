@@ -34,6 +34,7 @@
 //! | `transistor` | | the device, an object (below), required |
 //! | `parts` | | the passive parts, an object (below), required |
 //! | `requirements` | | what the design must meet, an object (below), optional |
+//! | `tolerances` | | the spread of the parts and conditions for the tolerance analysis, an object (below), optional |
 //!
 //! `transistor`: `preset` names a generic device ([`PRESETS`]); every other
 //! key given beside it overrides the preset's value. Without a preset every
@@ -96,10 +97,28 @@
 //! The ratings checks of the core (VCEO, IC max, Ptot, Tj max, resistor
 //! power) always run, whatever the requirements say.
 //!
+//! `tolerances` (every key optional, each left out takes its value from
+//! [`Tolerances::default`]; see [`Tolerances`]): what the tolerance analysis
+//! (`stagewright check --worst-case`, `--monte-carlo`) varies. A share is a
+//! number as a fraction (`0.01`) or text in percent (`"1 %"`, `"1%"`).
+//!
+//! | key | unit | meaning |
+//! |---|---|---|
+//! | `resistor_tolerance` | share | every resistor, ± (0 to 50 %), default 5 % |
+//! | `capacitor_tolerance` | share | every coupling and bypass capacitor, ± (0 to 90 %), default 20 % |
+//! | `supply_tolerance` | share | the supply, ± (0 to 50 %), default 5 % |
+//! | `vbe_spread` | V | VBE either side of the datasheet value (0 to 0.3 V), default 0.05 |
+//! | `ambient_min`, `ambient_max` | °C | the ambient range, default 0 to 50 |
+//!
+//! hFE always runs over the transistor's own `hfe_min` to `hfe_max`. The
+//! block is checked against the stage ([`Tolerances::validate`]): the
+//! highest ambient must be below `tj_max`, for example.
+//!
 //! # Writing
 //! [`Design::to_document`] and [`Design::to_json`] write a design back as a
 //! version 1 document: numbers in SI base units, the preset kept with only
-//! the values that differ from it, defaults left out.
+//! the values that differ from it, defaults left out (a `tolerances` block,
+//! when the design has one, is written in full).
 
 use alloc::borrow::ToOwned;
 use alloc::string::{String, ToString};
@@ -118,6 +137,7 @@ use crate::presets::PRESETS;
 use crate::ratings::Check;
 use crate::requirements::Requirements;
 use crate::stage::{Parts, Stage, StageKind, DEFAULT_RESISTOR_RATING};
+use crate::tolerance::Tolerances;
 use crate::transistor::{Polarity, TransistorData, DEFAULT_BETA_REVERSE, DEFAULT_XTB};
 use crate::value::parse_value_field;
 
@@ -173,7 +193,7 @@ impl From<&str> for Typed {
 const EXPECTED_VALUE: &str =
     "a number in SI base units such as 4700, or a string such as \"4k7\" or \"100 nF\"";
 /// What a text key that holds something else is told.
-const EXPECTED_TEXT: &str = "text in double quotes";
+pub(crate) const EXPECTED_TEXT: &str = "text in double quotes";
 /// What a block that is not an object is told.
 const EXPECTED_OBJECT: &str = "an object of keys and values in braces, { ... }";
 
@@ -188,10 +208,12 @@ const TOP_KEYS: &[&str] = &[
     "transistor",
     "parts",
     "requirements",
+    "tolerances",
 ];
 
-/// Defines a block of the document: a struct of optional text and typed
-/// values, its keys as dotted paths, and its reader.
+/// Defines a block of a document: a struct of optional text and typed
+/// values, its keys as dotted paths, and its reader (which checks the keys
+/// against a [`Schema`]). The specification file uses it too.
 macro_rules! block {
     (
         $(#[$meta:meta])*
@@ -201,17 +223,17 @@ macro_rules! block {
         }
     ) => {
         $(#[$meta])*
-        #[derive(Debug, Clone, PartialEq, Default, Serialize)]
+        #[derive(Debug, Clone, PartialEq, Default, ::serde::Serialize)]
         pub struct $name {
             $(
                 $(#[$tm])*
                 #[serde(skip_serializing_if = "Option::is_none")]
-                pub $t: Option<String>,
+                pub $t: Option<::alloc::string::String>,
             )*
             $(
                 $(#[$vm])*
                 #[serde(skip_serializing_if = "Option::is_none")]
-                pub $v: Option<Typed>,
+                pub $v: Option<$crate::design_file::Typed>,
             )*
         }
 
@@ -222,17 +244,21 @@ macro_rules! block {
                 $(concat!($prefix, ".", stringify!($v)),)*
             ];
 
-            fn read(value: &Value) -> Result<Self> {
-                let map = object(value, $prefix)?;
-                check_keys(map, $prefix)?;
+            pub(crate) fn read(
+                value: &::serde_json::Value,
+                schema: &$crate::design_file::Schema,
+            ) -> $crate::error::Result<Self> {
+                let map = $crate::design_file::object(value, $prefix)?;
+                schema.check_keys(map, $prefix)?;
                 Ok($name {
-                    $($t: text_at(map, $prefix, stringify!($t))?,)*
-                    $($v: typed_at(map, $prefix, stringify!($v))?,)*
+                    $($t: $crate::design_file::text_at(map, $prefix, stringify!($t))?,)*
+                    $($v: $crate::design_file::typed_at(map, $prefix, stringify!($v))?,)*
                 })
             }
         }
     };
 }
+pub(crate) use block;
 
 block! {
     /// The `transistor` block as typed.
@@ -340,6 +366,39 @@ block! {
     }
 }
 
+block! {
+    /// The `tolerances` block as typed.
+    TolerancesDocument in "tolerances" {
+        text: [],
+        values: [
+            /// Resistor tolerance, a share (fraction or `"1 %"`).
+            resistor_tolerance,
+            /// Capacitor tolerance, a share.
+            capacitor_tolerance,
+            /// Supply tolerance, a share.
+            supply_tolerance,
+            /// VBE spread either side of the datasheet value, V.
+            vbe_spread,
+            /// Lowest ambient, °C.
+            ambient_min,
+            /// Highest ambient, °C.
+            ambient_max,
+        ],
+    }
+}
+
+/// The keys of the design file, version 1.
+pub(crate) const DESIGN_SCHEMA: Schema = Schema {
+    keys: &[
+        TOP_KEYS,
+        TransistorDocument::KEYS,
+        PartsDocument::KEYS,
+        RequirementsDocument::KEYS,
+        TolerancesDocument::KEYS,
+    ],
+    aliases: ALIASES,
+};
+
 /// A design file as typed: keys checked, values not yet read.
 ///
 /// Build it with [`DesignDocument::from_json`] (or deserialize it with
@@ -373,6 +432,9 @@ pub struct DesignDocument {
     /// The requirements block.
     #[serde(skip_serializing_if = "Option::is_none")]
     pub requirements: Option<RequirementsDocument>,
+    /// The tolerances block.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub tolerances: Option<TolerancesDocument>,
 }
 
 impl DesignDocument {
@@ -409,8 +471,9 @@ impl DesignDocument {
             Some(other) => return Err(parse_error("format", other, EXPECTED_TEXT)),
         };
         check_format(&format)?;
-        check_keys(map, "")?;
+        DESIGN_SCHEMA.check_keys(map, "")?;
         let block = |key: &str| map.get(key).filter(|v| !v.is_null());
+        let schema = &DESIGN_SCHEMA;
         Ok(DesignDocument {
             format,
             title: text_at(map, "", "title")?,
@@ -419,11 +482,16 @@ impl DesignDocument {
             supply: typed_at(map, "", "supply")?,
             ambient: typed_at(map, "", "ambient")?,
             transistor: block("transistor")
-                .map(TransistorDocument::read)
+                .map(|v| TransistorDocument::read(v, schema))
                 .transpose()?,
-            parts: block("parts").map(PartsDocument::read).transpose()?,
+            parts: block("parts")
+                .map(|v| PartsDocument::read(v, schema))
+                .transpose()?,
             requirements: block("requirements")
-                .map(RequirementsDocument::read)
+                .map(|v| RequirementsDocument::read(v, schema))
+                .transpose()?,
+            tolerances: block("tolerances")
+                .map(|v| TolerancesDocument::read(v, schema))
                 .transpose()?,
         })
     }
@@ -461,6 +529,9 @@ pub struct Design {
     pub stage: Stage,
     /// What it must meet.
     pub requirements: Requirements,
+    /// The spread the tolerance analysis uses, when the file gives a
+    /// `tolerances` block (checked against the stage).
+    pub tolerances: Option<Tolerances>,
 }
 
 impl Design {
@@ -541,6 +612,14 @@ impl Design {
             } else {
                 Some(requirements)
             },
+            tolerances: self.tolerances.map(|t| TolerancesDocument {
+                resistor_tolerance: num(t.resistor_tolerance),
+                capacitor_tolerance: num(t.capacitor_tolerance),
+                supply_tolerance: num(t.supply_tolerance),
+                vbe_spread: num(t.vbe_spread),
+                ambient_min: num(file_celsius(t.ambient_min)),
+                ambient_max: num(file_celsius(t.ambient_max)),
+            }),
         }
     }
 
@@ -608,12 +687,18 @@ impl TryFrom<DesignDocument> for Design {
             transistor,
         };
         stage.validate().map_err(locate_part)?;
+        let tolerances = doc
+            .tolerances
+            .as_ref()
+            .map(|t| tolerances_from(t, &stage))
+            .transpose()?;
         Ok(Design {
             title: doc.title.unwrap_or_default(),
             notes: doc.notes.unwrap_or_default(),
             preset: t.preset.as_ref().map(|s| s.trim().to_owned()),
             stage,
             requirements,
+            tolerances,
         })
     }
 }
@@ -623,7 +708,7 @@ impl TryFrom<DesignDocument> for Design {
 
 /// The error for a JSON syntax problem: the line and column, the line as
 /// typed, and what was expected there.
-fn json_error(text: &str, e: &serde_json::Error) -> Error {
+pub(crate) fn json_error(text: &str, e: &serde_json::Error) -> Error {
     let line = e.line();
     let message = e.to_string();
     let expected = if e.is_eof() {
@@ -705,7 +790,7 @@ fn shown(value: &Value) -> String {
     }
 }
 
-fn parse_error(field: &str, value: &Value, expected: &'static str) -> Error {
+pub(crate) fn parse_error(field: &str, value: &Value, expected: &'static str) -> Error {
     Error::new(
         field,
         ErrorKind::Parse {
@@ -716,14 +801,14 @@ fn parse_error(field: &str, value: &Value, expected: &'static str) -> Error {
 }
 
 /// The map of a JSON object, or an error naming `prefix`.
-fn object<'a>(value: &'a Value, prefix: &str) -> Result<&'a Map<String, Value>> {
+pub(crate) fn object<'a>(value: &'a Value, prefix: &str) -> Result<&'a Map<String, Value>> {
     value
         .as_object()
         .ok_or_else(|| parse_error(prefix, value, EXPECTED_OBJECT))
 }
 
 /// The text of `key` in `map`, if given.
-fn text_at(map: &Map<String, Value>, prefix: &str, key: &str) -> Result<Option<String>> {
+pub(crate) fn text_at(map: &Map<String, Value>, prefix: &str, key: &str) -> Result<Option<String>> {
     match map.get(key) {
         None | Some(Value::Null) => Ok(None),
         Some(Value::String(s)) => Ok(Some(s.clone())),
@@ -732,7 +817,7 @@ fn text_at(map: &Map<String, Value>, prefix: &str, key: &str) -> Result<Option<S
 }
 
 /// The typed value of `key` in `map`, if given.
-fn typed_at(map: &Map<String, Value>, prefix: &str, key: &str) -> Result<Option<Typed>> {
+pub(crate) fn typed_at(map: &Map<String, Value>, prefix: &str, key: &str) -> Result<Option<Typed>> {
     match map.get(key) {
         None | Some(Value::Null) => Ok(None),
         Some(Value::String(s)) => Ok(Some(Typed::Text(s.clone()))),
@@ -748,16 +833,6 @@ fn typed_at(map: &Map<String, Value>, prefix: &str, key: &str) -> Result<Option<
     }
 }
 
-/// Every known key of the format, as dotted paths.
-fn all_keys() -> impl Iterator<Item = &'static str> {
-    TOP_KEYS
-        .iter()
-        .chain(TransistorDocument::KEYS)
-        .chain(PartsDocument::KEYS)
-        .chain(RequirementsDocument::KEYS)
-        .copied()
-}
-
 /// The parent of a dotted path: `parts` for `parts.rc`, `` for `supply`.
 fn parent(path: &str) -> &str {
     path.rsplit_once('.').map_or("", |(p, _)| p)
@@ -766,22 +841,6 @@ fn parent(path: &str) -> &str {
 /// The last name of a dotted path: `rc` for `parts.rc`.
 fn leaf(path: &str) -> &str {
     path.rsplit_once('.').map_or(path, |(_, k)| k)
-}
-
-/// Rejects the first key of `map` (in file order) that the block `prefix` does not know.
-fn check_keys(map: &Map<String, Value>, prefix: &str) -> Result<()> {
-    for key in map.keys() {
-        let known = all_keys().any(|p| parent(p) == prefix && leaf(p) == key);
-        if !known {
-            return Err(Error::new(
-                path(prefix, key),
-                ErrorKind::UnknownKey {
-                    suggestion: suggest(prefix, key),
-                },
-            ));
-        }
-    }
-    Ok(())
 }
 
 /// Other names people write for a key, anywhere in the file.
@@ -814,52 +873,84 @@ const ALIASES: &[(&str, &str)] = &[
     ("r_source", "parts.rs"),
 ];
 
-/// The nearest known key for an unknown `key` in the block `prefix`:
-/// the same name in another block, a known alias, the closest name by
-/// edit distance, or a name that holds every word of the key.
-fn suggest(prefix: &str, key: &str) -> Option<&'static str> {
-    let lower = key.trim().to_ascii_lowercase().replace(['-', ' '], "_");
-    let here = || all_keys().filter(move |p| parent(p) == prefix);
-    // Another spelling of a key of this block (case, dashes).
-    if let Some(p) = here().find(|p| leaf(p) == lower) {
-        return Some(p);
+/// The keys of one JSON format, for unknown-key detection and suggestions.
+pub(crate) struct Schema {
+    /// Every key as a dotted path, in groups (the top level, then each block).
+    pub(crate) keys: &'static [&'static [&'static str]],
+    /// Other names people write for a key, anywhere in the file.
+    pub(crate) aliases: &'static [(&'static str, &'static str)],
+}
+
+impl Schema {
+    /// Every known key of the format, as dotted paths.
+    fn all(&self) -> impl Iterator<Item = &'static str> + '_ {
+        self.keys.iter().flat_map(|g| g.iter()).copied()
     }
-    // A key of another block, put at the wrong level.
-    if let Some(p) = all_keys().find(|p| leaf(p) == lower) {
-        return Some(p);
-    }
-    if let Some(&(_, p)) = ALIASES.iter().find(|(a, _)| *a == lower) {
-        return Some(p);
-    }
-    let limit = match lower.chars().count() {
-        0..=3 => 1,
-        4..=8 => 2,
-        _ => 3,
-    };
-    let closest = |keys: &mut dyn Iterator<Item = &'static str>| {
-        let mut best: Option<(usize, &'static str)> = None;
-        for p in keys {
-            let d = edit_distance(&lower, leaf(p));
-            if d <= limit && best.is_none_or(|(b, _)| d < b) {
-                best = Some((d, p));
+
+    /// Rejects the first key of `map` (in file order) that the block
+    /// `prefix` does not know.
+    pub(crate) fn check_keys(&self, map: &Map<String, Value>, prefix: &str) -> Result<()> {
+        for key in map.keys() {
+            let known = self.all().any(|p| parent(p) == prefix && leaf(p) == key);
+            if !known {
+                return Err(Error::new(
+                    path(prefix, key),
+                    ErrorKind::UnknownKey {
+                        suggestion: self.suggest(prefix, key),
+                    },
+                ));
             }
         }
-        best.map(|(_, p)| p)
-    };
-    if let Some(p) = closest(&mut here()) {
-        return Some(p);
+        Ok(())
     }
-    // Every word of the key in one name of this block: `min_gain_db`.
-    let words: Vec<&str> = lower.split('_').filter(|w| !w.is_empty()).collect();
-    if words.len() >= 2 {
-        if let Some(p) = here().find(|p| {
-            let names: Vec<&str> = leaf(p).split('_').collect();
-            words.iter().all(|w| names.contains(w))
-        }) {
+
+    /// The nearest known key for an unknown `key` in the block `prefix`:
+    /// the same name in another block, a known alias, the closest name by
+    /// edit distance, or a name that holds every word of the key.
+    fn suggest(&self, prefix: &str, key: &str) -> Option<&'static str> {
+        let lower = key.trim().to_ascii_lowercase().replace(['-', ' '], "_");
+        let here = || self.all().filter(move |p| parent(p) == prefix);
+        // Another spelling of a key of this block (case, dashes).
+        if let Some(p) = here().find(|p| leaf(p) == lower) {
             return Some(p);
         }
+        // A key of another block, put at the wrong level.
+        if let Some(p) = self.all().find(|p| leaf(p) == lower) {
+            return Some(p);
+        }
+        if let Some(&(_, p)) = self.aliases.iter().find(|(a, _)| *a == lower) {
+            return Some(p);
+        }
+        let limit = match lower.chars().count() {
+            0..=3 => 1,
+            4..=8 => 2,
+            _ => 3,
+        };
+        let closest = |keys: &mut dyn Iterator<Item = &'static str>| {
+            let mut best: Option<(usize, &'static str)> = None;
+            for p in keys {
+                let d = edit_distance(&lower, leaf(p));
+                if d <= limit && best.is_none_or(|(b, _)| d < b) {
+                    best = Some((d, p));
+                }
+            }
+            best.map(|(_, p)| p)
+        };
+        if let Some(p) = closest(&mut here()) {
+            return Some(p);
+        }
+        // Every word of the key in one name of this block: `min_gain_db`.
+        let words: Vec<&str> = lower.split('_').filter(|w| !w.is_empty()).collect();
+        if words.len() >= 2 {
+            if let Some(p) = here().find(|p| {
+                let names: Vec<&str> = leaf(p).split('_').collect();
+                words.iter().all(|w| names.contains(w))
+            }) {
+                return Some(p);
+            }
+        }
+        closest(&mut self.all())
     }
-    closest(&mut all_keys())
 }
 
 /// Edit distance with adjacent transpositions (optimal string alignment), by characters.
@@ -902,9 +993,15 @@ fn check_format(format: &str) -> Result<()> {
         Ok(())
     } else {
         let mut allowed = String::from(DESIGN_FORMAT);
-        allowed.push_str(
-            " (the only version this build reads; a newer file needs a newer stagewright)",
-        );
+        if crate::spec_file::SPEC_FORMATS.contains(&format.trim()) {
+            allowed.push_str(
+                " (this is a specification: `stagewright design FILE` turns it into a design file)",
+            );
+        } else {
+            allowed.push_str(
+                " (the only version this build reads; a newer file needs a newer stagewright)",
+            );
+        }
         Err(Error::new(
             "format",
             ErrorKind::Unsupported {
@@ -915,7 +1012,7 @@ fn check_format(format: &str) -> Result<()> {
     }
 }
 
-fn stage_kind(name: Option<&str>) -> Result<StageKind> {
+pub(crate) fn stage_kind(name: Option<&str>) -> Result<StageKind> {
     let name = name.ok_or_else(|| {
         Error::missing(
             "stage",
@@ -934,11 +1031,15 @@ fn stage_kind(name: Option<&str>) -> Result<StageKind> {
     })
 }
 
-fn optional(value: &Option<Typed>, field: &str, unit: &'static str) -> Result<Option<f64>> {
+pub(crate) fn optional(
+    value: &Option<Typed>,
+    field: &str,
+    unit: &'static str,
+) -> Result<Option<f64>> {
     value.as_ref().map(|v| v.value(field, unit)).transpose()
 }
 
-fn required(
+pub(crate) fn required(
     value: &Option<Typed>,
     field: &str,
     unit: &'static str,
@@ -954,7 +1055,7 @@ fn required(
 const NO_PRESET: &str =
     "with no transistor.preset every datasheet value must be given; name a preset (such as general-purpose-npn) or give the value";
 
-fn transistor_from(t: &TransistorDocument) -> Result<TransistorData> {
+pub(crate) fn transistor_from(t: &TransistorDocument) -> Result<TransistorData> {
     let base = match &t.preset {
         Some(name) => Some(preset(name)?),
         None => None,
@@ -1055,7 +1156,7 @@ fn parts_from(kind: StageKind, p: &PartsDocument) -> Result<Parts> {
     })
 }
 
-fn requirements_from(r: &RequirementsDocument) -> Result<Requirements> {
+pub(crate) fn requirements_from(r: &RequirementsDocument) -> Result<Requirements> {
     let field = |name: &str| path("requirements", name);
     let finite = |v: &Option<Typed>, name: &str, unit: &'static str| -> Result<Option<f64>> {
         optional(v, &field(name), unit)
@@ -1092,6 +1193,95 @@ fn requirements_from(r: &RequirementsDocument) -> Result<Requirements> {
             return Err(Error::inconsistent(field("min_voltage_gain_db"), reason));
         }
     }
+    Ok(out)
+}
+
+/// What a share (a tolerance) is told when it cannot be read.
+const EXPECTED_SHARE: &str = "a fraction such as 0.01, or a percentage as text such as \"1 %\"";
+
+/// A share such as a tolerance, from 0 to `max`: a number is the fraction
+/// itself (`0.01`), text ending in `%` is in percent (`"1 %"`), other text
+/// is read as a plain value (`"0.01"`).
+///
+/// # Errors
+/// [`ErrorKind::Parse`] for text that is not a share, and
+/// [`ErrorKind::OutOfRange`] outside 0 to `max` (so `5` meant as 5 % is
+/// refused with the fix).
+pub(crate) fn share(value: &Typed, field: &str, max: f64) -> Result<f64> {
+    let x = match value {
+        Typed::Text(text) => match text.trim().strip_suffix('%') {
+            Some(body) => parse_value_field(field, body, "")
+                .map(|p| p / 100.0)
+                .map_err(|_| {
+                    Error::new(
+                        field,
+                        ErrorKind::Parse {
+                            text: text.clone(),
+                            expected: EXPECTED_SHARE,
+                        },
+                    )
+                })?,
+            None => parse_value_field(field, text, "").map_err(|_| {
+                Error::new(
+                    field,
+                    ErrorKind::Parse {
+                        text: text.clone(),
+                        expected: EXPECTED_SHARE,
+                    },
+                )
+            })?,
+        },
+        Typed::Number(x) => *x,
+    };
+    if x.is_finite() && (0.0..=max).contains(&x) {
+        Ok(x)
+    } else {
+        let mut allowed = String::new();
+        let _ = write!(
+            allowed,
+            "a fraction from 0 to {max} (0 to {} %), such as 0.01 or \"1 %\"",
+            max * 100.0
+        );
+        Err(Error::out_of_range(field, x, "", allowed))
+    }
+}
+
+/// The `tolerances` block read and checked against `stage`: each key left
+/// out takes the value of [`Tolerances::default`].
+fn tolerances_from(t: &TolerancesDocument, stage: &Stage) -> Result<Tolerances> {
+    let field = |name: &str| path("tolerances", name);
+    let d = Tolerances::default();
+    let share_or = |v: &Option<Typed>, name: &str, max: f64, default: f64| -> Result<f64> {
+        v.as_ref()
+            .map_or(Ok(default), |v| share(v, &field(name), max))
+    };
+    let celsius_or = |v: &Option<Typed>, name: &str, default: Temperature| -> Result<Temperature> {
+        Ok(optional(v, &field(name), "°C")?.map_or(default, Temperature::from_celsius))
+    };
+    let out = Tolerances {
+        resistor_tolerance: share_or(
+            &t.resistor_tolerance,
+            "resistor_tolerance",
+            0.5,
+            d.resistor_tolerance,
+        )?,
+        capacitor_tolerance: share_or(
+            &t.capacitor_tolerance,
+            "capacitor_tolerance",
+            0.9,
+            d.capacitor_tolerance,
+        )?,
+        supply_tolerance: share_or(
+            &t.supply_tolerance,
+            "supply_tolerance",
+            0.5,
+            d.supply_tolerance,
+        )?,
+        vbe_spread: optional(&t.vbe_spread, &field("vbe_spread"), "V")?.unwrap_or(d.vbe_spread),
+        ambient_min: celsius_or(&t.ambient_min, "ambient_min", d.ambient_min)?,
+        ambient_max: celsius_or(&t.ambient_max, "ambient_max", d.ambient_max)?,
+    };
+    out.validate(stage).map_err(|e| e.within("tolerances"))?;
     Ok(out)
 }
 
@@ -1449,6 +1639,86 @@ mod tests {
         assert!(
             analysed > 10,
             "some mutations stay valid and are analysed: {analysed}"
+        );
+    }
+
+    #[test]
+    fn a_tolerances_block_is_read_checked_and_written_in_full() {
+        let text = with(
+            r#""requirements""#,
+            r#""tolerances": { "resistor_tolerance": "1 %", "capacitor_tolerance": 0.1,
+                              "vbe_spread": "30m", "ambient_min": -20 },
+               "requirements""#,
+        );
+        let d = Design::from_json(&text).expect("a tolerances block is valid");
+        let t = d.tolerances.expect("the block is kept");
+        assert_eq!(t.resistor_tolerance, 0.01, "\"1 %\" is the fraction 0.01");
+        assert_eq!(
+            t.capacitor_tolerance, 0.1,
+            "a number is the fraction itself"
+        );
+        assert_eq!(t.vbe_spread, 0.03, "\"30m\" is 30 mV");
+        assert_eq!(t.ambient_min.celsius(), -20.0, "the lowest ambient in °C");
+        assert_eq!(
+            t.supply_tolerance,
+            Tolerances::default().supply_tolerance,
+            "a key left out takes the default"
+        );
+        let written = d.to_json();
+        assert!(
+            written.contains("\"supply_tolerance\": 0.05"),
+            "the block is written in full: {written}"
+        );
+        let back = Design::from_json(&written).expect("the written file reads back");
+        assert_eq!(back, d, "writing then reading is lossless");
+        assert_eq!(
+            Design::from_json(GOOD).unwrap().tolerances,
+            None,
+            "a file without the block has none"
+        );
+    }
+
+    #[test]
+    fn tolerance_errors_name_the_key_and_the_fix() {
+        let block = |b: &str| {
+            with(
+                r#""requirements""#,
+                &[r#""tolerances": "#, b, r#", "requirements""#].concat(),
+            )
+        };
+        let e = err(&block(r#"{ "resistor_tolerance": 5 }"#));
+        assert_eq!(
+            e.field(),
+            "tolerances.resistor_tolerance",
+            "the key is named"
+        );
+        assert!(
+            e.to_string().contains("\"1 %\""),
+            "5 meant as 5 % is refused with the fix: {e}"
+        );
+        let e = err(&block(r#"{ "ambient_max": 200 }"#));
+        assert_eq!(
+            e.field(),
+            "tolerances.ambient_max",
+            "the stage's own limits (tj_max) are checked"
+        );
+        let e = err(&block(r#"{ "ambient_min": 60 }"#));
+        assert!(
+            e.to_string().contains("ambient_max"),
+            "a range upside down names the other end: {e}"
+        );
+        let e = err(&block(r#"{ "resistor_tolerence": 0.01 }"#));
+        assert_eq!(
+            e.kind(),
+            &ErrorKind::UnknownKey {
+                suggestion: Some("tolerances.resistor_tolerance")
+            },
+            "unknown keys are caught in the new block too"
+        );
+        let e = err(&with("stagewright/1", "stagewright-spec/1"));
+        assert!(
+            e.to_string().contains("stagewright design"),
+            "a specification given as a design points to the design command: {e}"
         );
     }
 

@@ -91,6 +91,8 @@ mod ratings;
 mod report;
 mod requirements;
 mod response;
+#[cfg(feature = "serde")]
+mod spec_file;
 mod stage;
 mod swing;
 mod synthesis;
@@ -104,8 +106,8 @@ pub use constants::{
 };
 #[cfg(feature = "serde")]
 pub use design_file::{
-    Design, DesignDocument, PartsDocument, RequirementsDocument, TransistorDocument, Typed,
-    DEFAULT_AMBIENT_CELSIUS, DESIGN_FORMAT, DESIGN_FORMATS,
+    Design, DesignDocument, PartsDocument, RequirementsDocument, TolerancesDocument,
+    TransistorDocument, Typed, DEFAULT_AMBIENT_CELSIUS, DESIGN_FORMAT, DESIGN_FORMATS,
 };
 pub use error::{Error, ErrorKind, Result};
 pub use eseries::{ESeries, SeriesLookup};
@@ -124,6 +126,11 @@ pub use ratings::{
 pub use report::{Report, SweepRow, SweepTable, REPORT_FORMAT, SWEEP_FORMAT};
 pub use requirements::Requirements;
 pub use response::{log_frequencies, Bandwidth, Response, SEARCH_FROM, SEARCH_TO};
+#[cfg(feature = "serde")]
+pub use spec_file::{
+    BiasDocument, BiasPointDocument, PinnedPartsDocument, SeriesDocument, SpecDocument, SpecFile,
+    SPEC_FORMAT, SPEC_FORMATS,
+};
 pub use stage::{Parts, Stage, StageKind, DEFAULT_RESISTOR_RATING, MAX_SUPPLY};
 pub use swing::Swing;
 pub use synthesis::{

@@ -31,7 +31,8 @@
 //!    headroom and a lower output impedance for more current. With `bias`
 //!    `"max-swing"` it is the value nearest to RL (the starting rule: one
 //!    third of the available voltage as peak swing) that meets every
-//!    requirement and the transistor's ratings with a 5 % margin, found by
+//!    requirement, the transistor's ratings and the resistors' power (half
+//!    their rating, as the ratings check allows) with a 5 % margin, found by
 //!    a scan over six decades (four points a decade) and a bisection of the
 //!    boundary, so the stage draws no more current than the requirements
 //!    need. When no value leaves that margin, the scan is repeated without
@@ -107,7 +108,7 @@ use crate::format::format_si;
 use crate::hybrid_pi::SmallSignal;
 use crate::nodal::db20;
 use crate::operating_point::{OperatingPoint, Region};
-use crate::ratings::{Check, Dissipation};
+use crate::ratings::{Check, Dissipation, RESISTOR_DERATING};
 use crate::requirements::Requirements;
 use crate::response::Response;
 use crate::stage::{
@@ -684,6 +685,8 @@ struct Measured {
     supply_current: f64,
     tj: f64,
     power: f64,
+    /// The largest resistor dissipation, W.
+    resistor_power: f64,
     ic_peak: f64,
     active: bool,
     ss: SmallSignal,
@@ -1144,6 +1147,7 @@ impl<'a> Ctx<'a> {
             supply_current: d.supply_current,
             tj: d.junction_temperature.celsius(),
             power: d.transistor,
+            resistor_power: d.resistors.iter().fold(0.0, |a, &(_, w)| a.max(w)),
             ic_peak: swing.ic_peak,
             active: op.region == Region::Active,
             ss,
@@ -1157,7 +1161,7 @@ impl<'a> Ctx<'a> {
         let r = &self.spec.requirements;
         let t = &self.spec.transistor;
         let ta = self.spec.ambient.celsius();
-        let mut out = Vec::with_capacity(13);
+        let mut out = Vec::with_capacity(14);
         let ln_short = |need_over: f64| if need_over > 0.0 { need_over } else { 0.0 };
         let log_ratio = |a: f64, b: f64| {
             if a > 0.0 && b > 0.0 {
@@ -1282,6 +1286,15 @@ impl<'a> Ctx<'a> {
             limit: ptot,
             unit: "W",
             short: ln_short(log_ratio(m.power, ptot * (1.0 - margin))),
+        });
+        // The ratings check allows each resistor half its rating.
+        let resistor_limit = RESISTOR_DERATING * self.spec.resistor_rating;
+        out.push(Gap {
+            id: "resistor_power",
+            value: m.resistor_power,
+            limit: resistor_limit,
+            unit: "W",
+            short: ln_short(log_ratio(m.resistor_power, resistor_limit * (1.0 - margin))),
         });
         let tj_max = t.tj_max.celsius();
         out.push(Gap {
@@ -2049,6 +2062,7 @@ fn explain(gaps: &[Gap], alone: Option<Alone<'_>>) -> Option<Error> {
     let name = |id: &str| -> String {
         match id {
             "ic_max" | "ptot" | "tj_max" => format!("the transistor's {id} rating"),
+            "resistor_power" => String::from("the resistor power (half of resistor_rating)"),
             "region" => String::from("the active region"),
             _ => String::from(id),
         }
@@ -2072,8 +2086,8 @@ fn explain(gaps: &[Gap], alone: Option<Alone<'_>>) -> Option<Error> {
                 format_si(g.limit, g.unit)
             );
         }
-        let lower_is_better =
-            g.id.starts_with("max_") || matches!(g.id, "ic_max" | "ptot" | "tj_max");
+        let lower_is_better = g.id.starts_with("max_")
+            || matches!(g.id, "ic_max" | "ptot" | "tj_max" | "resistor_power");
         let miss = if lower_is_better {
             g.value - g.limit
         } else {
@@ -2124,6 +2138,7 @@ fn explain(gaps: &[Gap], alone: Option<Alone<'_>>) -> Option<Error> {
     }
     let field = match first.id {
         "ic_max" | "ptot" | "tj_max" => format!("transistor.{}", first.id),
+        "resistor_power" => String::from("resistor_rating"),
         "region" => String::from("bias"),
         id => format!("requirements.{id}"),
     };
@@ -2316,6 +2331,9 @@ mod tests {
         t.rth_ja = 5.0;
         let mut s = Spec::new(StageKind::CommonEmitter, t, 30.0, 50.0, 180.0);
         s.saturation_reserve = 0.0;
+        // RC carries about 2.4 W here: resistors rated for it (the ratings
+        // check allows half the rating).
+        s.resistor_rating = 10.0;
         s.parts.rc = Some(120.0);
         s.parts.re = Some(0.0);
         s.parts.re_bypassed = Some(20.0);
@@ -2559,6 +2577,45 @@ mod tests {
             synthesize(&s).unwrap_err().to_string()
         };
         assert!(e.contains("rl") && e.contains("-1"), "{e}");
+    }
+
+    #[test]
+    fn the_resistor_power_rating_is_respected() {
+        // A follower into 600 Ω with r1 pinned high: the scan wants a low RE
+        // and a large current. The ratings check allows each resistor half
+        // its rating (0.125 W of the default 0.25 W); the design must stay
+        // inside it as it stays inside the transistor's ratings (this one
+        // once came out with 148 mW in RE).
+        let mut s = spec(
+            StageKind::CommonCollector,
+            "general-purpose-npn",
+            15.0,
+            600.0,
+        );
+        s.rs = 2200.0;
+        let r = &mut s.requirements;
+        r.min_voltage_gain_db = Some(-1.0);
+        r.min_input_impedance = Some(20e3);
+        r.max_output_impedance = Some(50.0);
+        r.min_swing = Some(2.0);
+        r.max_f_low = Some(20.0);
+        s.parts.r1 = Some(47e3);
+        s.series.capacitors = ESeries::E6;
+        let d = synthesize(&s).expect("the specification can be met within the ratings");
+        let a = analyze(&d.stage).unwrap();
+        for c in &a.ratings {
+            assert!(c.pass, "every rating passes: {}", c.message);
+        }
+        // And a rating that no design can meet is named, with its shortfall.
+        s.resistor_rating = 0.01;
+        let e = synthesize(&s)
+            .expect_err("5 mW per resistor cannot bias this follower")
+            .to_string();
+        assert!(
+            e.contains("the resistor power (half of resistor_rating): ")
+                && e.contains("against 5 mW (short by"),
+            "the resistor power is named with its limit and shortfall: {e}"
+        );
     }
 
     #[test]

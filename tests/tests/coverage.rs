@@ -8,9 +8,9 @@
 //! - [`Covered::Api`]: not an equation (input data, names, errors, options,
 //!   limits of the implementation), checked by the named test of the
 //!   integration binary `core/tests/engine.rs`.
-//! - [`Covered::Format`]: the design-file reader and the report, which hold
-//!   no equation of their own (they call the items above); the command-line
-//!   tests exercise them.
+//! - [`Covered::Format`]: the design-file and specification-file readers
+//!   and the report, which hold no equation of their own (they call the
+//!   items above); the command-line tests exercise them.
 //!
 //! The test fails when lib.rs exports a name that is not listed, when a
 //! listed name is no longer exported, and when a named test function does
@@ -39,6 +39,8 @@ use Covered::{Api, Format, Reference, Unit};
 const DESIGN_FILE: &str =
     "design-file reader: reads values and calls the checked items; no equation";
 const REPORT: &str = "report writer: formats an Analysis; no equation";
+const SPEC_FILE: &str =
+    "specification-file reader: reads values into a Spec for synthesize; no equation";
 
 /// Every public item of the core and the test that covers it.
 const COVERAGE: &[(&str, Covered)] = &[
@@ -456,6 +458,7 @@ const COVERAGE: &[(&str, Covered)] = &[
     ("PartsDocument", Format(DESIGN_FILE)),
     ("RequirementsDocument", Format(DESIGN_FILE)),
     ("TransistorDocument", Format(DESIGN_FILE)),
+    ("TolerancesDocument", Format(DESIGN_FILE)),
     ("Typed", Format(DESIGN_FILE)),
     ("DEFAULT_AMBIENT_CELSIUS", Format(DESIGN_FILE)),
     ("DESIGN_FORMAT", Format(DESIGN_FILE)),
@@ -465,6 +468,15 @@ const COVERAGE: &[(&str, Covered)] = &[
     ("SweepTable", Format(REPORT)),
     ("REPORT_FORMAT", Format(REPORT)),
     ("SWEEP_FORMAT", Format(REPORT)),
+    // specification file (feature "serde")
+    ("SpecFile", Format(SPEC_FILE)),
+    ("SpecDocument", Format(SPEC_FILE)),
+    ("SeriesDocument", Format(SPEC_FILE)),
+    ("PinnedPartsDocument", Format(SPEC_FILE)),
+    ("BiasDocument", Format(SPEC_FILE)),
+    ("BiasPointDocument", Format(SPEC_FILE)),
+    ("SPEC_FORMAT", Format(SPEC_FILE)),
+    ("SPEC_FORMATS", Format(SPEC_FILE)),
 ];
 
 /// The core's lib.rs as it is now.

@@ -1,8 +1,16 @@
-//! `stagewright`: analyse, check and sweep design files of one-transistor
+//! `stagewright`: design, analyse, check and sweep one-transistor
 //! amplifier stages, and look up standard part values.
 //!
 //! Exit status: 0 when every check passes, 1 when a requirement or rating
-//! fails, 2 when a file is invalid or the command line is wrong.
+//! fails (or a specification cannot be met), 2 when a file is invalid or
+//! the command line is wrong.
+
+// The commands beyond the first ones live in `stagewright/` beside this
+// file (not directly in `src/bin/`, where cargo would take them for binaries).
+#[path = "stagewright/design.rs"]
+mod design;
+#[path = "stagewright/tolerance.rs"]
+mod tolerance;
 
 use std::io::{self, Read, Write};
 use std::process::ExitCode;
@@ -11,17 +19,21 @@ use clap::{Parser, Subcommand};
 use serde_json::json;
 use stagewright::{format_si, parse_value, Design, ESeries, Error, Report, SweepTable, PRESETS};
 
-const ABOUT: &str = "Analyse and check design files of discrete one-transistor amplifier stages.";
+const ABOUT: &str = "Design, analyse and check discrete one-transistor amplifier stages.";
 
 const LONG_ABOUT: &str = "\
-Analyse and check design files of discrete one-transistor amplifier stages
+Design, analyse and check discrete one-transistor amplifier stages
 (common emitter, common collector, common base; NPN or PNP).
 
 A design file is a JSON document: the stage, its supply, its transistor
 (a preset and/or datasheet values), its parts and the requirements it must
 meet. Values are numbers in SI base units or strings such as \"4k7\",
 \"100 nF\" or \"1.2 MHz\". The ratings of the transistor and resistors are
-always checked; the requirements are checked when given.";
+always checked; the requirements are checked when given.
+
+A specification (format stagewright-spec/1) states the stage, supply,
+source, load, requirements and design intents; `design` turns it into a
+design file of standard parts.";
 
 const AFTER_LONG_HELP: &str = "\
 A minimal design file:
@@ -38,17 +50,22 @@ A minimal design file:
   }
 
 Examples:
-  stagewright analyze design.json          readable report
-  stagewright analyze design.json --json   the report as JSON
-  stagewright check designs/*.json         for CI: one line per file
+  stagewright design spec.json -o design.json   design to a specification
+  stagewright analyze design.json               readable report
+  stagewright analyze design.json --json        the report as JSON
+  stagewright check designs/*.json              for CI: one line per file
+  stagewright check --worst-case --monte-carlo 2000 designs/*.json
+                                                and with a tolerance analysis
   stagewright sweep design.json --from 10 --to 1G --points 200 --csv
   stagewright values 4k7 --series E24
   stagewright presets
 
-Exit status: 0 every check passes, 1 a requirement or rating fails,
-2 a file is invalid (or the command line is wrong).
+Exit status: 0 every check passes, 1 a requirement or rating fails (or a
+specification cannot be met, or the tolerance analysis misses a
+requirement), 2 a file is invalid (or the command line is wrong).
 
-Every key of the design file and of the report is described in the README.";
+Every key of the design file, the specification and the report is
+described in the README.";
 
 #[derive(Parser)]
 #[command(
@@ -66,6 +83,28 @@ struct Cli {
 
 #[derive(Subcommand)]
 enum Command {
+    /// Design a stage to a specification, in standard part values.
+    ///
+    /// Reads a specification (format stagewright-spec/1), finds the ideal
+    /// continuous design, snaps every free part to its series (trying the
+    /// neighbouring values when snapping breaks a requirement) and analyses
+    /// the result. Prints the target, each part's ideal and chosen value,
+    /// the results before and after snapping, and the checks. Exit status
+    /// 0 when the design passes every check, 1 when the specification
+    /// cannot be met (the message names the requirement and the
+    /// shortfall), 2 when the file is invalid.
+    Design {
+        /// The specification file; `-` reads standard input.
+        file: String,
+        /// Print one JSON document (stagewright-design/1): target, parts,
+        /// differences, notes, the design file and its report.
+        #[arg(long)]
+        json: bool,
+        /// Write the design file (stagewright/1) here; `-o -` prints only
+        /// the design file.
+        #[arg(short = 'o', long = "output", value_name = "DESIGN.json")]
+        output: Option<String>,
+    },
     /// Analyse one design file and print its report.
     ///
     /// The readable report shows the operating point, small-signal model,
@@ -85,6 +124,13 @@ enum Command {
     /// check and each error with its file and field. Exit status 0 when
     /// every file passes, 1 when a requirement or rating fails, 2 when a
     /// file is invalid.
+    ///
+    /// With --worst-case and/or --monte-carlo N, each file also gets a
+    /// tolerance analysis (the corner table, the sensitivity table, the
+    /// yields and percentiles) and fails when a requirement fails at some
+    /// vertex or the yield is below --min-yield. The tolerances are the
+    /// design file's `tolerances` block, else the defaults, each replaced
+    /// by its option when given.
     Check {
         /// The design files; `-` reads standard input.
         #[arg(required = true)]
@@ -92,6 +138,8 @@ enum Command {
         /// Print the result as one JSON document (stagewright-check/1).
         #[arg(long)]
         json: bool,
+        #[command(flatten)]
+        tolerance: tolerance::ToleranceArgs,
     },
     /// Print the frequency response of a design as a table.
     ///
@@ -144,8 +192,19 @@ const INVALID: u8 = 2;
 fn main() -> ExitCode {
     let cli = Cli::parse();
     let code = match cli.command {
+        Command::Design { file, json, output } => design::run(&file, json, output.as_deref()),
         Command::Analyze { file, json } => analyze(&file, json),
-        Command::Check { files, json } => check(&files, json),
+        Command::Check {
+            files,
+            json,
+            tolerance,
+        } => match tolerance.plan() {
+            Ok(plan) => check(&files, json, plan.as_ref()),
+            Err(message) => {
+                eprintln!("error: {message}");
+                INVALID
+            }
+        },
         Command::Sweep {
             file,
             from,
@@ -246,18 +305,38 @@ fn analyze(file: &str, json: bool) -> u8 {
     }
 }
 
-fn check(files: &[String], json: bool) -> u8 {
-    let results: Vec<(&str, Result<Report, Problem>)> = files
+/// One file of `check`: its report and, when asked, its tolerance analysis.
+struct Checked {
+    report: Report,
+    tolerance: Option<tolerance::Outcome>,
+}
+
+impl Checked {
+    fn passed(&self) -> bool {
+        self.report.passed() && self.tolerance.as_ref().is_none_or(|t| t.passed())
+    }
+}
+
+fn check(files: &[String], json: bool, plan: Option<&tolerance::Plan>) -> u8 {
+    let results: Vec<(&str, Result<Checked, Problem>)> = files
         .iter()
         .map(|f| {
-            let r = load(f).map(|(d, a)| Report::new(&d, &a));
+            let r = load(f).and_then(|(d, a)| {
+                let tolerance = plan
+                    .map(|p| tolerance::analyse(&d, p).map_err(Problem::Design))
+                    .transpose()?;
+                Ok(Checked {
+                    report: Report::new(&d, &a),
+                    tolerance,
+                })
+            });
             (f.as_str(), r)
         })
         .collect();
     let invalid = results.iter().filter(|(_, r)| r.is_err()).count();
     let failed = results
         .iter()
-        .filter(|(_, r)| matches!(r, Ok(rep) if !rep.passed()))
+        .filter(|(_, r)| matches!(r, Ok(c) if !c.passed()))
         .count();
     let passed = results.len() - invalid - failed;
     let code = if invalid > 0 {
@@ -271,17 +350,40 @@ fn check(files: &[String], json: bool) -> u8 {
         let entries: Vec<serde_json::Value> = results
             .iter()
             .map(|(f, r)| match r {
-                Ok(rep) => json!({
-                    "file": f,
-                    "status": if rep.passed() { "pass" } else { "fail" },
-                    "checks": rep.checks().len(),
-                    "failing": rep.failing_checks().map(|c| json!({
-                        "id": c.id, "value": c.value, "limit": c.limit,
-                        "unit": c.unit, "message": c.message,
-                    })).collect::<Vec<_>>(),
-                    "error": null,
-                    "report": serde_json::to_value(rep).unwrap_or(serde_json::Value::Null),
-                }),
+                Ok(c) => {
+                    let rep = &c.report;
+                    let mut failing: Vec<serde_json::Value> = rep
+                        .failing_checks()
+                        .map(|c| {
+                            json!({
+                                "id": c.id, "value": c.value, "limit": c.limit,
+                                "unit": c.unit, "message": c.message,
+                            })
+                        })
+                        .collect();
+                    if let Some(t) = &c.tolerance {
+                        failing.extend(t.failing().into_iter().map(
+                            |(id, value, limit, unit, message)| {
+                                json!({
+                                    "id": id, "value": value, "limit": limit,
+                                    "unit": unit, "message": message,
+                                })
+                            },
+                        ));
+                    }
+                    let mut entry = json!({
+                        "file": f,
+                        "status": if c.passed() { "pass" } else { "fail" },
+                        "checks": rep.checks().len(),
+                        "failing": failing,
+                        "error": null,
+                        "report": serde_json::to_value(rep).unwrap_or(serde_json::Value::Null),
+                    });
+                    if let (Some(t), Some(m)) = (&c.tolerance, entry.as_object_mut()) {
+                        m.extend(t.json_entries());
+                    }
+                    entry
+                }
                 Err(p) => json!({
                     "file": f,
                     "status": "invalid",
@@ -311,32 +413,56 @@ fn check(files: &[String], json: bool) -> u8 {
         .unwrap_or(0);
     let mut o = String::new();
     for (f, r) in &results {
-        let (status, what) = match r {
-            Ok(rep) if rep.passed() => ("pass", format!("{} checks", rep.checks().len())),
-            Ok(rep) => (
-                "FAIL",
-                format!(
-                    "{} of {} checks fail",
-                    rep.failing_checks().count(),
-                    rep.checks().len()
-                ),
-            ),
+        let (status, mut what) = match r {
+            Ok(c) => {
+                let rep = &c.report;
+                let nominal = if rep.passed() {
+                    format!("{} checks", rep.checks().len())
+                } else {
+                    format!(
+                        "{} of {} checks fail",
+                        rep.failing_checks().count(),
+                        rep.checks().len()
+                    )
+                };
+                (if c.passed() { "pass" } else { "FAIL" }, nominal)
+            }
             Err(_) => ("invalid", "see below".to_string()),
         };
+        if let Ok(Checked {
+            tolerance: Some(t), ..
+        }) = r
+        {
+            what.push_str(", ");
+            what.push_str(&t.status());
+        }
         o.push_str(&format!("{status:<7}  {:<width$}  {what}\n", shown_name(f)));
     }
     for (f, r) in &results {
         match r {
-            Ok(rep) if !rep.passed() => {
+            Ok(c) if !c.passed() => {
                 o.push_str(&format!("\n{}:\n", shown_name(f)));
-                for c in rep.failing_checks() {
+                for c in c.report.failing_checks() {
                     o.push_str(&format!("  FAIL  {}: {}\n", c.id, c.message));
+                }
+                if let Some(t) = &c.tolerance {
+                    for (id, _, _, _, message) in t.failing() {
+                        o.push_str(&format!("  FAIL  {id}: {message}\n"));
+                    }
                 }
             }
             Err(p) => {
                 o.push_str(&format!("\n{}:\n  error: {}\n", shown_name(f), p.message()));
             }
             Ok(_) => {}
+        }
+    }
+    for (f, r) in &results {
+        if let Ok(Checked {
+            tolerance: Some(t), ..
+        }) = r
+        {
+            o.push_str(&t.to_text(shown_name(f)));
         }
     }
     o.push_str(&format!(

@@ -1,0 +1,736 @@
+//! The tolerance analysis of `stagewright check`: `--worst-case` and
+//! `--monte-carlo N --seed S`, with the tolerance options.
+//!
+//! The core computes everything ([`worst_case`], [`sensitivity`],
+//! [`MonteCarlo`]); this module chooses the tolerances (the design file's
+//! `tolerances` block, else [`Tolerances::default`], each value replaced by
+//! its command-line option when given), judges the requirements at the
+//! worst vertex and the yield against `--min-yield`, and prints.
+
+use clap::Args;
+use serde_json::{json, Map, Value};
+use stagewright::{
+    db20, format_si, parse_value_field, sensitivity, worst_case, Check, Corner, Design, Error,
+    ErrorKind, Level, MonteCarlo, MonteCarloSummary, Quantity, Requirements, Sensitivity,
+    Temperature, Tolerances, WorstCase, SEARCH_TO,
+};
+
+/// Sensitivity entries shown in the readable output (all are in `--json`).
+const SENSITIVITY_SHOWN: usize = 15;
+
+/// Default Monte Carlo seed.
+const DEFAULT_SEED: u64 = 1;
+
+fn share_help(what: &str, default: f64) -> String {
+    format!(
+        "{what} tolerance, ± a fraction (0.01) or a percentage (1%) [default: the design file's tolerances block, else {} %]",
+        format_si(100.0 * default, "")
+    )
+}
+
+fn resistor_help() -> String {
+    share_help("Resistor", Tolerances::default().resistor_tolerance)
+}
+
+fn capacitor_help() -> String {
+    share_help("Capacitor", Tolerances::default().capacitor_tolerance)
+}
+
+fn supply_help() -> String {
+    share_help("Supply", Tolerances::default().supply_tolerance)
+}
+
+fn vbe_help() -> String {
+    format!(
+        "VBE spread either side of the datasheet value, volts (0.05, 50m, \"50 mV\") [default: the design file's tolerances block, else {}]",
+        format_si(Tolerances::default().vbe_spread, "V")
+    )
+}
+
+fn ambient_min_help() -> String {
+    format!(
+        "Lowest ambient, °C [default: the design file's tolerances block, else {}]",
+        format_si(Tolerances::default().ambient_min.celsius(), "°C")
+    )
+}
+
+fn ambient_max_help() -> String {
+    format!(
+        "Highest ambient, °C [default: the design file's tolerances block, else {}]",
+        format_si(Tolerances::default().ambient_max.celsius(), "°C")
+    )
+}
+
+/// The tolerance options of `check`.
+#[derive(Args, Debug, Clone, Default)]
+pub(crate) struct ToleranceArgs {
+    /// Also solve every vertex of the tolerance box; a requirement that
+    /// fails at any vertex fails the file (exit 1).
+    #[arg(long)]
+    pub(crate) worst_case: bool,
+    /// Also run N Monte Carlo trials; a yield below --min-yield fails the
+    /// file (exit 1).
+    #[arg(long, value_name = "N")]
+    pub(crate) monte_carlo: Option<usize>,
+    /// Seed of the Monte Carlo generator; the same seed gives the same
+    /// trials [default: 1].
+    #[arg(long, value_name = "S", requires = "monte_carlo")]
+    pub(crate) seed: Option<u64>,
+    /// Least Monte Carlo yield that passes, percent (99, 99.5%) [default: 100].
+    #[arg(long, value_name = "P", requires = "monte_carlo")]
+    pub(crate) min_yield: Option<String>,
+    #[arg(long, value_name = "SHARE", help = resistor_help())]
+    pub(crate) resistor_tolerance: Option<String>,
+    #[arg(long, value_name = "SHARE", help = capacitor_help())]
+    pub(crate) capacitor_tolerance: Option<String>,
+    #[arg(long, value_name = "SHARE", help = supply_help())]
+    pub(crate) supply_tolerance: Option<String>,
+    #[arg(long, value_name = "VOLTS", help = vbe_help())]
+    pub(crate) vbe_spread: Option<String>,
+    #[arg(long, value_name = "CELSIUS", allow_hyphen_values = true, help = ambient_min_help())]
+    pub(crate) ambient_min: Option<String>,
+    #[arg(long, value_name = "CELSIUS", allow_hyphen_values = true, help = ambient_max_help())]
+    pub(crate) ambient_max: Option<String>,
+}
+
+/// Values given on the command line, each replacing the file's.
+#[derive(Debug, Clone, Copy, Default)]
+struct Overrides {
+    resistor_tolerance: Option<f64>,
+    capacitor_tolerance: Option<f64>,
+    supply_tolerance: Option<f64>,
+    vbe_spread: Option<f64>,
+    ambient_min: Option<f64>,
+    ambient_max: Option<f64>,
+}
+
+/// What to run on each file.
+#[derive(Debug, Clone, Copy)]
+pub(crate) struct Plan {
+    worst_case: bool,
+    /// Trials and seed.
+    monte_carlo: Option<(usize, u64)>,
+    /// Least yield that passes, a fraction.
+    min_yield: f64,
+    overrides: Overrides,
+}
+
+/// A share from the command line: `0.01`, `1%`, `1 %`.
+fn share_option(option: &str, text: &str) -> Result<f64, String> {
+    let (body, scale) = match text.trim().strip_suffix('%') {
+        Some(b) => (b, 0.01),
+        None => (text, 1.0),
+    };
+    parse_value_field(option, body, "")
+        .map(|v| v * scale)
+        .map_err(|_| {
+            format!("{option}: cannot read \"{text}\"; expected a fraction such as 0.01 or a percentage such as 1%")
+        })
+}
+
+impl ToleranceArgs {
+    /// The plan, `None` when no tolerance analysis is asked for.
+    ///
+    /// # Errors
+    /// A message naming the option, for a value that cannot be read or a
+    /// tolerance option given without `--worst-case` or `--monte-carlo`.
+    pub(crate) fn plan(&self) -> Result<Option<Plan>, String> {
+        let given: Vec<&str> = [
+            ("--resistor-tolerance", self.resistor_tolerance.is_some()),
+            ("--capacitor-tolerance", self.capacitor_tolerance.is_some()),
+            ("--supply-tolerance", self.supply_tolerance.is_some()),
+            ("--vbe-spread", self.vbe_spread.is_some()),
+            ("--ambient-min", self.ambient_min.is_some()),
+            ("--ambient-max", self.ambient_max.is_some()),
+        ]
+        .iter()
+        .filter(|(_, on)| *on)
+        .map(|(name, _)| *name)
+        .collect();
+        if !self.worst_case && self.monte_carlo.is_none() {
+            return match given.first() {
+                Some(name) => Err(format!(
+                    "{name} sets a tolerance for the tolerance analysis; add --worst-case or --monte-carlo N"
+                )),
+                None => Ok(None),
+            };
+        }
+        let share = |option: &str, v: &Option<String>| {
+            v.as_deref().map(|t| share_option(option, t)).transpose()
+        };
+        let value = |option: &str, v: &Option<String>, unit: &str| {
+            v.as_deref()
+                .map(|t| parse_value_field(option, t, unit).map_err(|e| e.to_string()))
+                .transpose()
+        };
+        let overrides = Overrides {
+            resistor_tolerance: share("--resistor-tolerance", &self.resistor_tolerance)?,
+            capacitor_tolerance: share("--capacitor-tolerance", &self.capacitor_tolerance)?,
+            supply_tolerance: share("--supply-tolerance", &self.supply_tolerance)?,
+            vbe_spread: value("--vbe-spread", &self.vbe_spread, "V")?,
+            ambient_min: value("--ambient-min", &self.ambient_min, "°C")?,
+            ambient_max: value("--ambient-max", &self.ambient_max, "°C")?,
+        };
+        let min_yield = match &self.min_yield {
+            None => 1.0,
+            Some(t) => {
+                let body = t.trim().strip_suffix('%').unwrap_or(t);
+                match parse_value_field("--min-yield", body, "") {
+                    Ok(p) if (0.0..=100.0).contains(&p) => p / 100.0,
+                    _ => {
+                        return Err(format!(
+                            "--min-yield must be a percentage from 0 to 100, such as 99 or 99.5%, got \"{t}\""
+                        ))
+                    }
+                }
+            }
+        };
+        Ok(Some(Plan {
+            worst_case: self.worst_case,
+            monte_carlo: self
+                .monte_carlo
+                .map(|n| (n, self.seed.unwrap_or(DEFAULT_SEED))),
+            min_yield,
+            overrides,
+        }))
+    }
+}
+
+/// One requirement judged at its worst vertex.
+pub(crate) struct WorstCheck {
+    check: Check,
+    /// The vertex of the worst value (`None` when the stage has no such
+    /// corner frequency, which counts as in the nominal check).
+    corner: Option<Corner>,
+}
+
+/// The tolerance analysis of one file.
+pub(crate) struct Outcome {
+    tolerances: Tolerances,
+    hfe: (f64, f64),
+    worst: Option<(WorstCase, Vec<WorstCheck>)>,
+    sensitivity: Vec<Sensitivity>,
+    monte_carlo: Option<MonteCarloSummary>,
+    min_yield: f64,
+}
+
+/// The tolerances for `design`: its block (or the defaults) with the
+/// command-line values in place. An error names the option when the value
+/// came from the command line, else the key of the block.
+fn tolerances(design: &Design, o: &Overrides) -> Result<Tolerances, Error> {
+    let mut t = design.tolerances.unwrap_or_default();
+    let set = |slot: &mut f64, v: Option<f64>| {
+        if let Some(v) = v {
+            *slot = v;
+        }
+    };
+    set(&mut t.resistor_tolerance, o.resistor_tolerance);
+    set(&mut t.capacitor_tolerance, o.capacitor_tolerance);
+    set(&mut t.supply_tolerance, o.supply_tolerance);
+    set(&mut t.vbe_spread, o.vbe_spread);
+    if let Some(c) = o.ambient_min {
+        t.ambient_min = Temperature::from_celsius(c);
+    }
+    if let Some(c) = o.ambient_max {
+        t.ambient_max = Temperature::from_celsius(c);
+    }
+    t.validate(&design.stage).map_err(|e| {
+        let from_option = match e.field() {
+            "resistor_tolerance" => o.resistor_tolerance.is_some(),
+            "capacitor_tolerance" => o.capacitor_tolerance.is_some(),
+            "supply_tolerance" => o.supply_tolerance.is_some(),
+            "vbe_spread" => o.vbe_spread.is_some(),
+            "ambient_min" => o.ambient_min.is_some(),
+            "ambient_max" => o.ambient_max.is_some(),
+            _ => false,
+        };
+        if from_option {
+            let option = format!("--{}", e.field().replace('_', "-"));
+            let kind = match e.kind() {
+                ErrorKind::OutOfRange {
+                    value,
+                    unit,
+                    allowed,
+                } if e.field().ends_with("_tolerance") => ErrorKind::OutOfRange {
+                    value: *value,
+                    unit,
+                    allowed: format!("{allowed} as a fraction (write 5% for five percent)"),
+                },
+                other => other.clone(),
+            };
+            Error::new(option, kind)
+        } else {
+            e.within("tolerances")
+        }
+    })?;
+    Ok(t)
+}
+
+/// Each requirement that is set, at the vertex where it is worst. The
+/// meaning is that of the nominal check: a missing lower corner counts as
+/// 0 Hz, a missing upper corner as the top of the search range.
+fn worst_checks(r: &Requirements, w: &WorstCase) -> Vec<WorstCheck> {
+    use Quantity::*;
+    // (requirement, limit, result, true for a lower bound)
+    let rows = [
+        (
+            "min_voltage_gain_db",
+            r.min_voltage_gain_db,
+            VoltageGain,
+            true,
+        ),
+        (
+            "max_voltage_gain_db",
+            r.max_voltage_gain_db,
+            VoltageGain,
+            false,
+        ),
+        (
+            "min_input_impedance",
+            r.min_input_impedance,
+            InputImpedance,
+            true,
+        ),
+        (
+            "max_output_impedance",
+            r.max_output_impedance,
+            OutputImpedance,
+            false,
+        ),
+        ("min_swing", r.min_swing, Swing, true),
+        ("max_f_low", r.max_f_low, FLow, false),
+        ("min_f_high", r.min_f_high, FHigh, true),
+        (
+            "max_supply_current",
+            r.max_supply_current,
+            SupplyCurrent,
+            false,
+        ),
+        (
+            "max_junction_temperature",
+            r.max_junction_temperature,
+            JunctionTemperature,
+            false,
+        ),
+    ];
+    let mut out = Vec::new();
+    for (id, limit, q, at_least) in rows {
+        let Some(limit) = limit else { continue };
+        let (value, corner) = match w.get(q) {
+            Some(e) if at_least => (e.min, Some(e.min_corner.clone())),
+            Some(e) => (e.max, Some(e.max_corner.clone())),
+            // A stage without this corner frequency.
+            None if q == FLow => (0.0, None),
+            None if q == FHigh => (SEARCH_TO, None),
+            None => (f64::NAN, None),
+        };
+        let (value, unit) = match q {
+            VoltageGain => (db20(value), "dB"),
+            _ => (value, q.unit()),
+        };
+        let what = match q {
+            VoltageGain => "voltage gain",
+            InputImpedance => "input impedance",
+            OutputImpedance => "output impedance",
+            Swing => "symmetric output swing (peak)",
+            FLow => "lower corner",
+            FHigh => "upper corner",
+            SupplyCurrent => "supply current",
+            JunctionTemperature => "junction temperature",
+            Ic | Vce => q.name(),
+        };
+        let what = format!("worst-case {what}");
+        let check = if at_least {
+            Check::at_least(id, &what, value, limit, unit)
+        } else {
+            Check::at_most(id, &what, value, limit, unit)
+        };
+        out.push(WorstCheck { check, corner });
+    }
+    out
+}
+
+/// Runs the plan on one valid design.
+///
+/// # Errors
+/// A tolerance that does not suit the stage (naming the option or the
+/// key), or a stage the tolerance analysis cannot solve.
+pub(crate) fn analyse(design: &Design, plan: &Plan) -> Result<Outcome, Error> {
+    let t = tolerances(design, &plan.overrides)?;
+    let stage = &design.stage;
+    let worst = if plan.worst_case {
+        let w = worst_case(stage, &t)?;
+        let checks = worst_checks(&design.requirements, &w);
+        Some((w, checks))
+    } else {
+        None
+    };
+    let (sensitivity, monte_carlo) = match plan.monte_carlo {
+        Some((trials, seed)) => {
+            let mut mc =
+                MonteCarlo::new(stage, &t, &design.requirements, trials, seed).map_err(|e| {
+                    if e.field() == "trials" {
+                        Error::new("--monte-carlo", e.kind().clone())
+                    } else {
+                        e
+                    }
+                })?;
+            mc.run();
+            (mc.sensitivity().to_vec(), Some(mc.summary()))
+        }
+        None => (sensitivity(stage)?, None),
+    };
+    Ok(Outcome {
+        tolerances: t,
+        hfe: (stage.transistor.hfe_min, stage.transistor.hfe_max),
+        worst,
+        sensitivity,
+        monte_carlo,
+        min_yield: plan.min_yield,
+    })
+}
+
+/// A yield as a percentage that never rounds a failing run up to 100 %.
+fn percent(y: f64) -> String {
+    if y >= 1.0 {
+        "100 %".to_string()
+    } else {
+        format!("{:.2} %", (y * 1e4).floor() / 100.0)
+    }
+}
+
+/// A corner as `+r1 -r2 +hfe` (at max, at min; parameters at nominal left out).
+fn corner_text(c: &Corner) -> String {
+    let parts: Vec<String> = c
+        .settings
+        .iter()
+        .filter(|s| s.level != Level::Nominal)
+        .map(|s| {
+            let sign = if s.level == Level::Max { '+' } else { '-' };
+            format!("{sign}{}", s.parameter.name())
+        })
+        .collect();
+    if parts.is_empty() {
+        "nominal".to_string()
+    } else {
+        parts.join(" ")
+    }
+}
+
+/// A corner as `{"r1": "max", "r2": "min", ...}`.
+fn corner_json(c: &Corner) -> Value {
+    let mut m = Map::new();
+    for s in &c.settings {
+        m.insert(s.parameter.name().to_string(), json!(s.level.name()));
+    }
+    Value::Object(m)
+}
+
+impl Outcome {
+    fn worst_passed(&self) -> bool {
+        self.worst
+            .as_ref()
+            .is_none_or(|(_, c)| c.iter().all(|w| w.check.pass))
+    }
+
+    fn yield_passed(&self) -> bool {
+        self.monte_carlo
+            .as_ref()
+            // The fraction is passed/completed: compare with a margin of a
+            // part in 10¹² so that 99.5 % of 1000 trials is 99.5 %.
+            .is_none_or(|m| m.yield_fraction + 1e-12 >= self.min_yield)
+    }
+
+    /// True when every requirement holds at every vertex and the yield is
+    /// at least the least accepted.
+    pub(crate) fn passed(&self) -> bool {
+        self.worst_passed() && self.yield_passed()
+    }
+
+    /// What fails, as `check --json` lists it: (id, value, limit, unit, message).
+    pub(crate) fn failing(&self) -> Vec<(String, f64, f64, &'static str, String)> {
+        let mut out = Vec::new();
+        if let Some((_, checks)) = &self.worst {
+            for w in checks.iter().filter(|w| !w.check.pass) {
+                let at = w
+                    .corner
+                    .as_ref()
+                    .map_or(String::new(), |c| format!(" at {}", corner_text(c)));
+                out.push((
+                    format!("worst_case.{}", w.check.id),
+                    w.check.value,
+                    w.check.limit,
+                    w.check.unit,
+                    format!("{}{at}", w.check.message),
+                ));
+            }
+        }
+        if let Some(m) = &self.monte_carlo {
+            if !self.yield_passed() {
+                out.push((
+                    "monte_carlo.yield".to_string(),
+                    100.0 * m.yield_fraction,
+                    100.0 * self.min_yield,
+                    "%",
+                    format!(
+                        "Monte Carlo yield {} of {} trials is below the required {}",
+                        percent(m.yield_fraction),
+                        m.completed,
+                        percent(self.min_yield)
+                    ),
+                ));
+            }
+        }
+        out
+    }
+
+    /// The summary for the file's status line.
+    pub(crate) fn status(&self) -> String {
+        let mut parts = Vec::new();
+        if let Some((w, checks)) = &self.worst {
+            let failed = checks.iter().filter(|c| !c.check.pass).count();
+            parts.push(if failed == 0 {
+                format!("worst case holds at {} vertices", w.vertices)
+            } else {
+                format!("worst case: {failed} of {} requirements fail", checks.len())
+            });
+        }
+        if let Some(m) = &self.monte_carlo {
+            parts.push(format!(
+                "yield {} of {} trials",
+                percent(m.yield_fraction),
+                m.completed
+            ));
+        }
+        parts.join(", ")
+    }
+
+    /// The keys this analysis adds to the file's entry of `check --json`.
+    pub(crate) fn json_entries(&self) -> Map<String, Value> {
+        let t = &self.tolerances;
+        let mut m = Map::new();
+        m.insert(
+            "tolerances".into(),
+            json!({
+                "resistor_tolerance": t.resistor_tolerance,
+                "capacitor_tolerance": t.capacitor_tolerance,
+                "supply_tolerance": t.supply_tolerance,
+                "vbe_spread": t.vbe_spread,
+                "ambient_min": t.ambient_min.celsius(),
+                "ambient_max": t.ambient_max.celsius(),
+                "hfe_min": self.hfe.0,
+                "hfe_max": self.hfe.1,
+            }),
+        );
+        match &self.worst {
+            Some((w, checks)) => {
+                let mut corners = Map::new();
+                for e in &w.extremes {
+                    corners.insert(
+                        e.quantity.name().to_string(),
+                        json!({
+                            "nominal": e.nominal,
+                            "min": e.min,
+                            "max": e.max,
+                            "unit": e.quantity.unit(),
+                            "corner": { "min": corner_json(&e.min_corner), "max": corner_json(&e.max_corner) },
+                        }),
+                    );
+                }
+                m.insert("corners".into(), Value::Object(corners));
+                m.insert(
+                    "worst_case".into(),
+                    json!({
+                        "pass": self.worst_passed(),
+                        "vertices": w.vertices,
+                        "inactive_vertices": w.inactive_vertices,
+                        "checks": checks.iter().map(|c| json!({
+                            "id": c.check.id,
+                            "pass": c.check.pass,
+                            "value": c.check.value,
+                            "limit": c.check.limit,
+                            "unit": c.check.unit,
+                            "message": c.check.message,
+                            "corner": c.corner.as_ref().map(corner_json),
+                        })).collect::<Vec<_>>(),
+                    }),
+                );
+            }
+            None => {
+                m.insert("corners".into(), Value::Null);
+                m.insert("worst_case".into(), Value::Null);
+            }
+        }
+        m.insert(
+            "sensitivity".into(),
+            serde_json::to_value(&self.sensitivity).unwrap_or(Value::Null),
+        );
+        m.insert(
+            "monte_carlo".into(),
+            match &self.monte_carlo {
+                Some(s) => {
+                    let mut percentiles = Map::new();
+                    for d in &s.distributions {
+                        percentiles.insert(
+                            d.quantity.name().to_string(),
+                            json!({ "p1": d.p1, "p50": d.p50, "p99": d.p99, "unit": d.quantity.unit() }),
+                        );
+                    }
+                    let mut requirements = Map::new();
+                    for r in &s.requirements {
+                        requirements.insert(r.requirement.to_string(), json!(r.yield_fraction));
+                    }
+                    json!({
+                        "trials": s.trials,
+                        "completed": s.completed,
+                        "seed": s.seed,
+                        "yield": s.yield_fraction,
+                        "min_yield": self.min_yield,
+                        "pass": self.yield_passed(),
+                        "no_solution": s.no_solution,
+                        "not_active": s.not_active,
+                        "requirements": requirements,
+                        "percentiles": percentiles,
+                    })
+                }
+                None => Value::Null,
+            },
+        );
+        m
+    }
+
+    /// The readable tolerance analysis of one file.
+    pub(crate) fn to_text(&self, name: &str) -> String {
+        let t = &self.tolerances;
+        let mut o = format!("\n{name}: tolerance analysis\n");
+        o.push_str(&format!(
+            "  resistors ±{}, capacitors ±{}, supply ±{}, VBE ±{}, ambient {} to {}, hFE {} to {}\n",
+            format_si(100.0 * t.resistor_tolerance, "%"),
+            format_si(100.0 * t.capacitor_tolerance, "%"),
+            format_si(100.0 * t.supply_tolerance, "%"),
+            format_si(t.vbe_spread, "V"),
+            format_si(t.ambient_min.celsius(), "°C"),
+            format_si(t.ambient_max.celsius(), "°C"),
+            format_si(self.hfe.0, ""),
+            format_si(self.hfe.1, ""),
+        ));
+        let row = |o: &mut String, cells: [&str; 4]| {
+            o.push_str(&format!(
+                "    {:<22}{:>12}{:>12}{:>12}\n",
+                cells[0], cells[1], cells[2], cells[3]
+            ));
+        };
+        if let Some((w, checks)) = &self.worst {
+            let active = if w.inactive_vertices == 0 {
+                "the transistor active at every one".to_string()
+            } else {
+                format!(
+                    "the transistor saturated or cut off at {} of them: the extremes are those of the vertices only",
+                    w.inactive_vertices
+                )
+            };
+            o.push_str(&format!(
+                "\n  Worst case ({} vertices, {active})\n",
+                w.vertices
+            ));
+            row(&mut o, ["result", "nominal", "min", "max"]);
+            for e in &w.extremes {
+                let u = e.quantity.unit();
+                row(
+                    &mut o,
+                    [
+                        e.quantity.name(),
+                        &format_si(e.nominal, u),
+                        &format_si(e.min, u),
+                        &format_si(e.max, u),
+                    ],
+                );
+                if e.quantity == Quantity::VoltageGain {
+                    row(
+                        &mut o,
+                        [
+                            "voltage_gain (dB)",
+                            &format_si(db20(e.nominal), "dB"),
+                            &format_si(db20(e.min), "dB"),
+                            &format_si(db20(e.max), "dB"),
+                        ],
+                    );
+                }
+            }
+            if checks.is_empty() {
+                o.push_str("\n  Requirements at their worst vertex: none set\n");
+            } else {
+                o.push_str(
+                    "\n  Requirements at their worst vertex (+ at max, - at min, others nominal)\n",
+                );
+                let width = checks.iter().map(|c| c.check.id.len()).max().unwrap_or(0);
+                for c in checks {
+                    let at = c.corner.as_ref().map_or(String::new(), |k| {
+                        format!("\n          at {}", corner_text(k))
+                    });
+                    o.push_str(&format!(
+                        "    {}  {:<width$}  {}{at}\n",
+                        if c.check.pass { "pass" } else { "FAIL" },
+                        c.check.id,
+                        c.check.message
+                    ));
+                }
+            }
+        }
+        let shown = self.sensitivity.len().min(SENSITIVITY_SHOWN);
+        o.push_str(&format!(
+            "\n  Sensitivity (% change of the result per % change of the parameter, largest first; {shown} of {})\n",
+            self.sensitivity.len()
+        ));
+        o.push_str(&format!(
+            "    {:<22}{:<14}{:>8}\n",
+            "result", "parameter", "%/%"
+        ));
+        for s in self.sensitivity.iter().take(SENSITIVITY_SHOWN) {
+            o.push_str(&format!(
+                "    {:<22}{:<14}{:>+8.3}\n",
+                s.quantity.name(),
+                s.parameter.name(),
+                s.percent_per_percent
+            ));
+        }
+        if let Some(m) = &self.monte_carlo {
+            o.push_str(&format!(
+                "\n  Monte Carlo ({} trials, seed {}): yield {}, at least {} required: {}\n",
+                m.completed,
+                m.seed,
+                percent(m.yield_fraction),
+                percent(self.min_yield),
+                if self.yield_passed() { "pass" } else { "FAIL" }
+            ));
+            if m.no_solution > 0 || m.not_active > 0 {
+                o.push_str(&format!(
+                    "    {} trials without an operating point, {} saturated or cut off\n",
+                    m.no_solution, m.not_active
+                ));
+            }
+            if !m.requirements.is_empty() {
+                let list: Vec<String> = m
+                    .requirements
+                    .iter()
+                    .map(|r| format!("{} {}", r.requirement, percent(r.yield_fraction)))
+                    .collect();
+                o.push_str(&format!("    each requirement: {}\n", list.join(", ")));
+            }
+            row(&mut o, ["result", "p1", "p50", "p99"]);
+            for d in &m.distributions {
+                let u = d.quantity.unit();
+                row(
+                    &mut o,
+                    [
+                        d.quantity.name(),
+                        &format_si(d.p1, u),
+                        &format_si(d.p50, u),
+                        &format_si(d.p99, u),
+                    ],
+                );
+            }
+        }
+        o
+    }
+}
