@@ -3,11 +3,14 @@
 #   dist/stagewright.html  self-contained page, opens from file:// offline
 #   dist/stagewright.js    embeddable classic script defining <stagewright-calc>
 #
-# Tools: rustup + cargo + node (>= 18). Steps: add the wasm target if
+# Tools: rustup + cargo + node (>= 18) + npm. Steps: add the wasm target if
 # missing; install the wasm-bindgen CLI of exactly the version in Cargo.lock
-# if the one on PATH differs; `cargo build` the wasm crate with a
-# size-tuned release profile; `wasm-bindgen --target no-modules`; then
-# `node www/build.mjs` inlines everything and prints a size report.
+# if the one on PATH differs; install zopfli (Debian package) and terser
+# (npm, www/package-lock.json) if missing; `cargo build` the wasm crate with
+# a size-tuned release profile; `wasm-bindgen --target no-modules`; then
+# `node www/build.mjs` minifies and inlines everything, prints the size
+# report (raw and gzip of the wasm and of both files) and fails when
+# dist/stagewright.html is over its budget (400 KB raw, 150 KB gzip).
 #
 # wasm-opt is never run: the Debian binaryen package produces modules that
 # fail at start-up. Nothing here calls it, and wasm-pack (which would) is
@@ -63,7 +66,22 @@ if [ "$HAVE_WB" != "$WB_VERSION" ]; then
   cargo install wasm-bindgen-cli --version "$WB_VERSION"
 fi
 
-# 3. The wasm module, tuned for size. The root profile is shared with the
+# 3. The packers: zopfli compresses the inlined wasm (about 8 % smaller
+# than zlib), terser minifies the script. Both are needed to keep the page
+# within its size budget.
+if ! command -v zopfli >/dev/null 2>&1; then
+  say "installing zopfli (Debian package)"
+  SUDO=""
+  if [ "$(id -u)" -ne 0 ]; then SUDO="sudo"; fi
+  $SUDO env DEBIAN_FRONTEND=noninteractive apt-get install -y zopfli \
+    || { $SUDO apt-get update && $SUDO env DEBIAN_FRONTEND=noninteractive apt-get install -y zopfli; }
+fi
+if [ ! -d www/node_modules/terser ]; then
+  say "installing terser (www/package-lock.json)"
+  (cd www && npm ci --no-audit --no-fund)
+fi
+
+# 4. The wasm module, tuned for size. The root profile is shared with the
 # native builds, so the size settings come in through the environment.
 say "building stagewright-wasm for $TARGET"
 CARGO_PROFILE_RELEASE_OPT_LEVEL=z \
@@ -74,7 +92,7 @@ CARGO_PROFILE_RELEASE_DEBUG=false \
 CARGO_PROFILE_RELEASE_INCREMENTAL=false \
   cargo build -p stagewright-wasm --release --target "$TARGET" --target-dir "$TARGET_DIR"
 
-# 4. JavaScript glue for a classic script (no ES modules: file:// pages
+# 5. JavaScript glue for a classic script (no ES modules: file:// pages
 # cannot load modules or fetch the wasm).
 say "wasm-bindgen $WB_VERSION (no-modules)"
 rm -rf "$BINDGEN_OUT"
@@ -86,6 +104,6 @@ wasm-bindgen "$TARGET_DIR/$TARGET/release/stagewright_wasm.wasm" \
   --remove-name-section \
   --remove-producers-section
 
-# 5. One page and one script.
+# 6. One page and one script, and the size report.
 say "assembling dist/"
 node www/build.mjs --bindgen "$BINDGEN_OUT" --out "$ROOT/dist"

@@ -5,7 +5,10 @@
 #
 # Installs Chromium from Debian packages when /usr/bin/chromium is missing
 # (never a tool's own browser download), installs the test dependency
-# (playwright-core only), builds dist/ if it is missing, and runs the tests.
+# (playwright-core only), builds dist/ if it is missing, builds the native
+# `stagewright` command (the tests compare the page's report with its
+# `analyze --json` for every example design), and runs the tests. Then runs
+# the timing script once and prints its figures (it never fails the run).
 # Screenshots land in tests/browser/artifacts/ (not committed).
 set -euo pipefail
 
@@ -25,6 +28,9 @@ if [ ! -f dist/stagewright.html ] || [ ! -f dist/stagewright.js ]; then
   bash scripts/build-web.sh
 fi
 
+echo "==> building the native stagewright command (reference reports)"
+cargo build --release -p stagewright --bin stagewright
+
 cd "$ROOT/tests/browser"
 echo "==> installing test dependencies"
 if [ -f package-lock.json ]; then
@@ -36,3 +42,6 @@ fi
 echo "==> running browser tests"
 mkdir -p artifacts
 node --test --test-concurrency=1
+
+echo "==> timing (recompute + redraw after an edit; figures only, never a failure)"
+node bench.mjs || echo "(the timing script did not finish; its figures are missing)"

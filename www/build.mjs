@@ -15,11 +15,20 @@
 // Usage: node www/build.mjs [--bindgen DIR] [--out DIR]
 // (scripts/build-web.sh runs cargo and wasm-bindgen first, then this.)
 
+import { execFileSync } from "node:child_process";
 import { createHash } from "node:crypto";
 import { mkdirSync, readFileSync, writeFileSync } from "node:fs";
 import path from "node:path";
 import { fileURLToPath } from "node:url";
 import { gzipSync } from "node:zlib";
+
+// terser (www/package.json; scripts/build-web.sh runs `npm ci` in www/).
+let minify;
+try {
+  ({ minify } = await import("terser"));
+} catch (e) {
+  throw new Error("terser is missing: run `npm ci` in www/ (scripts/build-web.sh does)");
+}
 
 const here = path.dirname(fileURLToPath(import.meta.url));
 const root = path.resolve(here, "..");
@@ -103,24 +112,65 @@ function forInlineScript(js) {
   return js.replace(/<\/(script)/gi, "<\\/$1").replace(/<!--/g, "<\\!--");
 }
 
+/** The glue's `debugString` (a 57-line printer of any JavaScript value,
+ * reached only when Rust formats a JsValue with `{:?}` in a message nobody
+ * sees) becomes `String(val)`: 0.4 KB of the page's gzip budget. Checked:
+ * the build stops if the glue no longer has that function. */
+function plainDebugString(js) {
+  const start = js.indexOf("function debugString(val) {");
+  if (start < 0) return js;
+  const indent = /\n(\s*)$/.exec(js.slice(0, start))[1];
+  const end = js.indexOf(`\n${indent}}`, start);
+  if (end < 0) throw new Error("unexpected wasm-bindgen glue: debugString has no end");
+  return `${js.slice(0, start)}function debugString(val) { return String(val); }${js.slice(end + indent.length + 2)}`;
+}
+
 const version = workspaceVersion();
-const glue = trimGlue(read(path.join(bindgenDir, "stagewright_wasm.js")));
+const glue = plainDebugString(trimGlue(read(path.join(bindgenDir, "stagewright_wasm.js"))));
 if (!/let wasm_bindgen\b/.test(glue)) {
   throw new Error("unexpected wasm-bindgen glue: expected the no-modules target (let wasm_bindgen = …)");
 }
-const wasm = readFileSync(path.join(bindgenDir, "stagewright_wasm_bg.wasm"));
-const wasmGzip = gzipSync(wasm, { level: 9 });
-const css = trimSource(read(path.join(here, "styles.css")), "www/styles.css");
+const wasmPath = path.join(bindgenDir, "stagewright_wasm_bg.wasm");
+const wasm = readFileSync(wasmPath);
+
+/** The wasm in gzip format, as small as we can make it: zopfli (Debian
+ * package `zopfli`, installed by scripts/build-web.sh) writes ordinary
+ * gzip about 8 % smaller than zlib's level 9, which the browser's
+ * DecompressionStream reads like any gzip. Without zopfli (or with
+ * STAGEWRIGHT_NO_ZOPFLI=1) zlib is used and the page may exceed its budget. */
+function gzipBest(file, bytes) {
+  if (!process.env.STAGEWRIGHT_NO_ZOPFLI) {
+    try {
+      const out = execFileSync("zopfli", ["--i100", "-c", file], { maxBuffer: 64 << 20, stdio: ["ignore", "pipe", "pipe"] });
+      if (out.length > 18 && out[0] === 0x1f && out[1] === 0x8b) return { data: out, how: "zopfli" };
+    } catch (e) {
+      console.warn(`zopfli failed or is missing (${e.code || e.message}); using zlib level 9`);
+    }
+  }
+  return { data: gzipSync(bytes, { level: 9 }), how: "zlib -9" };
+}
+const packed = gzipBest(wasmPath, wasm);
+const wasmGzip = packed.data;
+/** CSS without the spaces around braces, semicolons, commas and child
+ * combinators, and after colons. The sheet's only strings are short
+ * `content` values that hold no such punctuation next to a space. */
+function squeezeCss(text) {
+  return text
+    .replace(/\s*([{};,>])\s*/g, "$1")
+    .replace(/:\s+/g, ":")
+    .replace(/;}/g, "}")
+    .replace(/([^\d.#-])0\.(\d)/g, "$1.$2");
+}
+
+const css = squeezeCss(trimSource(read(path.join(here, "styles.css")), "www/styles.css"));
 const element = trimSource(read(path.join(here, "element.js")), "www/element.js");
 const page = trimSource(read(path.join(here, "page.js")), "www/page.js");
 const template = read(path.join(here, "index.html"));
 
 const banner =
-  `/*! Stagewright ${version}: calculator for one-transistor amplifier stages. ` +
-  "MIT OR Apache-2.0. Defines <stagewright-calc>; a page with a Content-Security-Policy " +
-  "needs script-src 'wasm-unsafe-eval'. */";
+  `/*! Stagewright ${version}. MIT OR Apache-2.0. CSP: script-src 'wasm-unsafe-eval'. */`;
 
-const bundle = [
+const source = [
   banner,
   "(function () {",
   '"use strict";',
@@ -137,8 +187,26 @@ const bundle = [
   "",
 ].join("\n");
 
+/** Minified with terser: names of locals mangled, and the element's
+ * private members (`this._name`: an underscore and a letter; the glue's
+ * `__wbg…` names do not match), strings untouched, the licence banner (a
+ * `/*!` comment) kept. Public members (`design`, `report`, `reload`,
+ * `renderReport`) keep their names. */
+async function small(code) {
+  const out = await minify(code, {
+    ecma: 2020,
+    compress: { passes: 2 },
+    mangle: { properties: { regex: /^_[a-zA-Z]/ } },
+    format: { comments: /^!/ },
+  });
+  return out.code;
+}
+
+const bundle = `${await small(source)}\n`;
+const pageScript = await small(page);
+
 // The standalone page runs the same bundle inline, then the page script.
-const inline = forInlineScript(`${bundle}\n${page}`);
+const inline = forInlineScript(`${bundle}${pageScript}`);
 const hash = createHash("sha256").update(inline, "utf8").digest("base64");
 const csp = [
   "default-src 'none'",
@@ -168,6 +236,7 @@ writeFileSync(htmlPath, html);
 const kb = (n) => `${(n / 1000).toFixed(1)} KB`;
 const rows = [
   ["wasm (after wasm-bindgen)", wasm.length, gzipSync(wasm, { level: 9 }).length],
+  [`wasm as inlined (${packed.how})`, wasm.length, wasmGzip.length],
   ["dist/stagewright.js", Buffer.byteLength(bundle), gzipSync(bundle, { level: 9 }).length],
   ["dist/stagewright.html", Buffer.byteLength(html), gzipSync(html, { level: 9 }).length],
 ];
@@ -175,7 +244,7 @@ console.log("\nsize report                       raw          gzip");
 for (const [name, raw, gz] of rows) {
   console.log(`  ${name.padEnd(28)} ${String(raw).padStart(8)} B ${kb(raw).padStart(9)}   ${String(gz).padStart(7)} B ${kb(gz).padStart(9)}`);
 }
-const [, htmlRaw, htmlGz] = rows[2];
+const [, htmlRaw, htmlGz] = rows[3];
 console.log(`  budget for the page: ${kb(BUDGET_HTML_RAW)} raw, ${kb(BUDGET_HTML_GZIP)} gzip`);
 if (htmlRaw > BUDGET_HTML_RAW || htmlGz > BUDGET_HTML_GZIP) {
   console.error("dist/stagewright.html is over its size budget");

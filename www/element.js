@@ -73,15 +73,6 @@ const STAGES = [
   ["common-base", "common base"],
 ];
 
-/** Device classes offered when the engine does not list its own. */
-const PRESETS_FALLBACK = [
-  ["general-purpose-npn", "general-purpose NPN"],
-  ["general-purpose-pnp", "general-purpose PNP"],
-  ["low-noise-npn", "low-noise NPN"],
-  ["medium-power-npn", "medium-power NPN"],
-  ["rf-npn", "RF NPN"],
-];
-
 /** Which parts each stage uses (the rest are hidden and left out). */
 const STAGE_PARTS = {
   "common-emitter": ["r1", "r2", "rc", "re", "re_bypassed", "c_emitter", "rs", "rl", "c_in", "c_out"],
@@ -183,6 +174,10 @@ const CHECK_INFO = {
   min_f_high: ["upper corner", "Hz", "≥"],
   max_supply_current: ["supply current", "A", "≤"],
   max_junction_temperature: ["junction temperature", "°C", "≤"],
+  vceo: ["VCEO rating", "V", ""],
+  ic_max: ["collector current rating", "A", ""],
+  ptot: ["dissipation rating", "W", ""],
+  tj_max: ["junction temperature rating", "°C", ""],
 };
 
 const SERIES_CHOICES = ["E3", "E6", "E12", "E24", "E48", "E96", "E192"];
@@ -355,50 +350,33 @@ function loadEngine() {
   return enginePromise;
 }
 
-/* ---- Hook points for the analysis (phase 2) -----------------------
- * The wasm exports below are optional until the core's analysis lands;
- * each hook returns null while its export is missing, and the page shows
- * the form, diagram and field checks without results.
+/* ---- The analysis ------------------------------------------------
+ * The wasm exports (see wasm/src/analysis.rs):
  *
- *   api.analyze(designJson: string) -> report object (schema: see
- *       renderReport); throws {field, message}.
- *   api.frequency_sweep(designJson: string, pointsPerDecade: number) ->
- *       {freq, voltage_gain_db, current_gain_db, power_gain_db, phase_deg,
- *        input_impedance, output_impedance} (arrays, one entry per freq).
- *   api.output_curves(designJson: string) ->
- *       {characteristics: [{label, vce: [], ic: []}],
- *        dc_load_line: {vce: [], ic: []}, ac_load_line: {vce: [], ic: []},
+ *   api.compute(designJson: string, pointsPerDecade: number) ->
+ *       {report, sweep, curves}: one analysis, everything the page shows.
+ *   api.analyze(designJson: string) -> report object, the very document of
+ *       `stagewright analyze FILE --json`; throws {field, message}.
+ *   compute(…).sweep: {freq, voltage_gain_db, voltage_gain_from_source_db,
+ *        current_gain_db, power_gain_db, phase_deg, input_impedance,
+ *        output_impedance} (Float64Arrays, one entry per freq).
+ *   compute(…).curves: {characteristics: [{label, ib, vce, ic}],
+ *        dc_load_line: {vce, ic}, ac_load_line: {vce, ic},
  *        quiescent: {vce, ic}, swing_limits: [{label, vce, ic}]}.
  *   api.presets() -> [{name, label}];  api.preset_data(name) -> {hfe, …}.
  */
 
+/** Points a decade of the plotted sweep. */
+const SWEEP_PER_DECADE = 20;
+
 function hasAnalysis(api) {
-  return !!api && typeof api.analyze === "function";
+  return !!api && typeof api.compute === "function";
 }
 
-/** Runs the analysis of `design`. Returns {report, sweep, curves} or null
- * when the engine has no analysis; throws {field, message}. */
+/** Runs the analysis of `design` once. Returns {report, sweep, curves} or
+ * null when the engine has no analysis; throws {field, message}. */
 function runAnalysis(api, design) {
-  if (!hasAnalysis(api)) return null;
-  const json = JSON.stringify(design);
-  const report = api.analyze(json);
-  let sweep = null;
-  let curves = null;
-  if (typeof api.frequency_sweep === "function") {
-    try {
-      sweep = api.frequency_sweep(json, 20);
-    } catch (e) {
-      sweep = null;
-    }
-  }
-  if (typeof api.output_curves === "function") {
-    try {
-      curves = api.output_curves(json);
-    } catch (e) {
-      curves = null;
-    }
-  }
-  return { report, sweep, curves };
+  return hasAnalysis(api) ? api.compute(JSON.stringify(design), SWEEP_PER_DECADE) : null;
 }
 
 function enginePresets(api) {
@@ -410,7 +388,7 @@ function enginePresets(api) {
       /* fall back to the built-in list */
     }
   }
-  return PRESETS_FALLBACK;
+  return [];
 }
 
 function presetData(api, name) {
@@ -436,13 +414,18 @@ function asFieldError(err) {
 
 let colorProbe = null;
 
-/** Any CSS colour as "#rrggbb" or "rgba(…)", which the plotter reads. */
+/** Any CSS colour as "#rrggbb" or "#rrggbbaa", which the plotter reads
+ * (a canvas gives back "#rrggbb" or "rgba(r, g, b, a)"). */
 function cssColor(value, fallback) {
   if (!colorProbe) colorProbe = document.createElement("canvas").getContext("2d");
   if (!colorProbe) return fallback;
   colorProbe.fillStyle = fallback;
   if (value) colorProbe.fillStyle = value;
-  return String(colorProbe.fillStyle);
+  const c = String(colorProbe.fillStyle);
+  const m = /^rgba?\((\d+), (\d+), (\d+)(?:, ([\d.]+))?\)$/.exec(c);
+  if (!m) return c;
+  const hex = (n) => Math.round(n).toString(16).padStart(2, "0");
+  return "#" + hex(m[1]) + hex(m[2]) + hex(m[3]) + hex(255 * (m[4] === undefined ? 1 : Number(m[4])));
 }
 
 /* ------------------------------------------------------------------ */
@@ -778,6 +761,7 @@ const SWING_ROWS = [
 ];
 const DISS_ROWS = [
   ["transistor", sym("P", "D"), "W", "transistor dissipation"],
+  ["ptot_available", sym("P", "tot"), "W", "dissipation rating at this ambient"],
   ["junction_temperature", sym("T", "J"), "°C", "junction temperature"],
   ["supply_current", sym("I", "S"), "A", "supply current"],
 ];
@@ -1258,18 +1242,18 @@ class StagewrightCalc extends HTMLElement {
     const resistorTable = h("table", { class: "numbers resistors" },
       h("caption", null, "Resistors"),
       h("thead", null, h("tr", null, h("th", { scope: "col" }, "part"), h("th", { scope: "col" }, "dissipation"),
-        h("th", { scope: "col" }, "of rating"))),
+        h("th", { scope: "col" }, "of limit"))),
       h("tbody", null));
     const diss = quantityCard("dissipation", "Dissipation and temperature", DISS_ROWS);
     diss.card.append(resistorTable);
 
     const checksBody = h("tbody", null);
     const checks = h("section", { class: "card card-checks", "aria-labelledby": id("h-checks") },
-      h("h3", { id: id("h-checks") }, "Requirements"),
-      h("p", { class: "checks-summary" }, "No requirements given."),
+      h("h3", { id: id("h-checks") }, "Ratings and requirements"),
+      h("p", { class: "checks-summary" }, "No checks."),
       h("table", { class: "numbers checks" },
         h("thead", null, h("tr", null,
-          h("th", { scope: "col" }, "result"), h("th", { scope: "col" }, "requirement"),
+          h("th", { scope: "col" }, "result"), h("th", { scope: "col" }, "check"),
           h("th", { scope: "col" }, "value"), h("th", { scope: "col" }, "limit"),
           h("th", { scope: "col" }, "note"))),
         checksBody));
@@ -1332,6 +1316,8 @@ class StagewrightCalc extends HTMLElement {
     this._seriesR.disabled = ro;
     this._seriesC.disabled = ro;
     this._frame.classList.toggle("is-readonly", ro);
+    // Snapping to a standard value is an edit: hide the offers, or show them again.
+    if (this._design && this._api) this._refreshAllFields();
   }
 
   _applyCompact() {
@@ -1491,7 +1477,7 @@ class StagewrightCalc extends HTMLElement {
         this._refreshAllFields();
       }
     }
-    if (spec.key === "title" || spec.key === "stage") this._refreshHeading();
+    if (spec.key === "title" || spec.key === "stage" || spec.key === "supply") this._refreshHeading();
     if (spec.key === "stage") this._applyStage();
     this._isExample = false;
     this._recompute();
@@ -1668,12 +1654,7 @@ class StagewrightCalc extends HTMLElement {
     const api = this._api;
     if (!api) return;
     this._clearAnalysisErrors();
-    if (!hasAnalysis(api)) {
-      this._resultNotice.textContent = "This build has no analysis yet: the form, the diagram and the value checks work; results will appear here.";
-      this._resultNotice.hidden = false;
-      this._drawPlots();
-      return;
-    }
+    if (!hasAnalysis(api)) return;
     let out;
     try {
       out = runAnalysis(api, design);
@@ -1812,34 +1793,34 @@ class StagewrightCalc extends HTMLElement {
     fill("swing", SWING_ROWS, swing);
 
     const diss = report.dissipation || {};
-    const ptot = this._designNumber(["transistor", "ptot_max"], "W");
-    fill("dissipation", DISS_ROWS, diss, (key, v, unit) => {
-      if (v === undefined) return "—";
-      const base = fmt(v, unit);
-      if (key === "transistor" && ptot && typeof v === "number") return `${base} (${pct(v / ptot)} of ${fmt(ptot, "W")})`;
-      return base;
-    });
-    const rating = this._designNumber(["parts", "resistor_rating"], "W");
+    fill("dissipation", DISS_ROWS, diss);
+    // Each resistor against the limit of its rating check.
+    const checks = Array.isArray(report.checks) ? report.checks : [];
+    const limits = {};
+    for (const c of checks) {
+      if (typeof c.id === "string" && c.id.startsWith("resistor_power.")) limits[c.id.slice(15)] = c.limit;
+    }
     const tbody = this._out.resistors;
     tbody.textContent = "";
-    tbody.parentNode.caption.textContent = rating ? `Resistors (rated ${fmt(rating, "W")} each)` : "Resistors";
     const resistors = diss.resistors && typeof diss.resistors === "object" ? diss.resistors : {};
     for (const [name, watts] of Object.entries(resistors)) {
-      const share = rating && typeof watts === "number" ? watts / rating : null;
+      const share = limits[name] > 0 && typeof watts === "number" ? watts / limits[name] : null;
       const tr = h("tr", { class: share !== null && share > 1 ? "over" : share !== null && share > 0.5 ? "near" : "" },
         h("th", { scope: "row" }, name),
         h("td", null, fmt(watts, "W")),
-        h("td", null, share === null ? "rating not given" : pct(share)));
+        h("td", null, share === null ? "—" : pct(share)));
       tbody.append(tr);
     }
 
-    // Requirement checks.
-    const checks = Array.isArray(report.checks) ? report.checks : [];
+    // Ratings and requirement checks.
     const cbody = this._out.checks;
     cbody.textContent = "";
     let passed = 0;
     for (const c of checks) {
-      const info = CHECK_INFO[c.id] || [String(c.id || "check").replace(/_/g, " "), typeof c.unit === "string" ? c.unit : "", ""];
+      const id = String(c.id || "check");
+      const info = CHECK_INFO[id] ||
+        (id.startsWith("resistor_power.") ? [`${id.slice(15)} power rating`, "W", ""] : null) ||
+        [id.replace(/_/g, " "), typeof c.unit === "string" ? c.unit : "", ""];
       const [name, unit, rel] = info;
       if (c.pass) passed++;
       cbody.append(h("tr", { class: c.pass ? "pass" : "fail" },
@@ -1850,29 +1831,28 @@ class StagewrightCalc extends HTMLElement {
         h("td", { class: "msg" }, typeof c.message === "string" ? c.message : "")));
     }
     this._out.checksSummary.textContent = checks.length
-      ? `${passed} of ${checks.length} requirement${checks.length === 1 ? "" : "s"} met.`
-      : "No requirements given.";
+      ? `${passed} of ${checks.length} checks met: ratings first, then the design's requirements.`
+      : "No checks.";
     this._out.checksCard.classList.toggle("has-fail", passed < checks.length);
 
     // Cautions, prominently, with the deferral to local practice.
     const cautions = Array.isArray(report.cautions) ? report.cautions : [];
     const ul = this._cautions.querySelector("ul");
     ul.textContent = "";
+    // The engine ends each safety caution with its deferral to local codes
+    // and licensed practice: said once, under the list.
+    let deferral = "";
     for (const c of cautions) {
-      ul.append(h("li", { "data-id": String(c.id || "") }, typeof c.message === "string" ? c.message : String(c.id)));
+      let text = typeof c.message === "string" ? c.message : String(c.id);
+      const cut = text.indexOf(" These figures are design aids");
+      if (cut > 0) {
+        deferral = text.slice(cut + 1);
+        text = text.slice(0, cut);
+      }
+      ul.append(h("li", { "data-id": String(c.id || "") }, text));
     }
+    this._cautions.querySelector(".deferral").textContent = deferral ? `${deferral} ${DEFERRAL}` : DEFERRAL;
     this._cautions.hidden = cautions.length === 0;
-  }
-
-  _designNumber(path, unit) {
-    const v = getPath(this._design, path);
-    if (v === undefined || !this._api) return null;
-    try {
-      const n = this._api.parse_value(path[path.length - 1], String(v), unit);
-      return n > 0 ? n : null;
-    } catch (e) {
-      return null;
-    }
   }
 
   _summary(report) {
@@ -1886,7 +1866,7 @@ class StagewrightCalc extends HTMLElement {
       bits.push(`voltage gain ${api.format_si(20 * Math.log10(Math.abs(mid.voltage_gain)), "dB")}`);
     }
     const checks = Array.isArray(report.checks) ? report.checks : [];
-    if (checks.length) bits.push(`${checks.filter((c) => c.pass).length} of ${checks.length} requirements met`);
+    if (checks.length) bits.push(`${checks.filter((c) => c.pass).length} of ${checks.length} checks met`);
     const cautions = Array.isArray(report.cautions) ? report.cautions.length : 0;
     if (cautions) bits.push(`${cautions} caution${cautions === 1 ? "" : "s"}`);
     return "Results: " + bits.join(", ") + ".";
@@ -1948,7 +1928,7 @@ class StagewrightCalc extends HTMLElement {
           { name: "power gain", values: sweep.power_gain_db, color: t.traces[2], dashed: true },
         ].filter((s) => s.values),
         y_unit: "dB",
-        phase: sweep.phase_deg ? { name: "phase of voltage gain", values: sweep.phase_deg, color: t.traces[0] } : null,
+        phase: sweep.phase_deg ? { name: "phase of voltage gain", values: unwrapDegrees(sweep.phase_deg), color: t.traces[0] } : null,
         x_markers: markers,
         theme: t.theme,
       };
@@ -1967,9 +1947,11 @@ class StagewrightCalc extends HTMLElement {
     if (curves) {
       const list = [];
       const labels = [];
+      let right = 0;
       for (const c of curves.characteristics || []) {
         list.push({ name: "", x: c.vce, y: c.ic, color: t.muted, width: 1 });
         const n = c.vce ? c.vce.length : 0;
+        if (n) right = Math.max(right, c.vce[n - 1]);
         if (n && c.label) labels.push({ x: c.vce[n - 1], y: c.ic[n - 1], label: c.label, color: t.muted, shape: "none" });
       }
       if (curves.dc_load_line) list.push({ name: "DC load line", x: curves.dc_load_line.vce, y: curves.dc_load_line.ic, color: t.traces[0], width: 2 });
@@ -1980,6 +1962,8 @@ class StagewrightCalc extends HTMLElement {
       specs.loadlines = {
         curves: list, markers: marks, x_name: "VCE", y_name: "IC", x_unit: "V", y_unit: "A", theme: t.theme,
       };
+      // Room on the right for the base-current labels at the curve ends.
+      if (right > 0) specs.loadlines.x_range = new Float64Array([0, right * 1.3]);
     }
     return specs;
   }
@@ -1991,11 +1975,16 @@ class StagewrightCalc extends HTMLElement {
     const a = analysis || this._analysis;
     const specs = this._plotSpecs(a);
     this._specs = specs;
-    const empty = hasAnalysis(api) || a ? "no data for this design" : "results appear here once the analysis runs";
+    const empty = "no data for this design";
     const draw = (key, fn, spec, emptySpec) => {
       const p = this._plotParts[key];
-      const size = this._canvasSize.get(p.canvas);
-      const sized = size ? { pixel_size: [size.w, size.h], pixel_ratio: size.ratio } : null;
+      // The size the ResizeObserver saw, or else the CSS box × devicePixelRatio.
+      let size = this._canvasSize.get(p.canvas);
+      if (!size) {
+        const ratio = window.devicePixelRatio || 1;
+        size = { w: Math.round(p.canvas.clientWidth * ratio), h: Math.round(p.canvas.clientHeight * ratio), ratio };
+      }
+      const sized = { pixel_size: new Float64Array([size.w, size.h]), pixel_ratio: size.ratio };
       try {
         fn(p.canvas, Object.assign({}, spec || Object.assign({ empty_text: empty, theme: specs.theme.theme }, emptySpec), sized));
       } catch (err) {
@@ -2007,8 +1996,8 @@ class StagewrightCalc extends HTMLElement {
         p.tableTimer = setTimeout(() => this._fillPlotTable(key), 250);
       }
     };
-    draw("gain", api.plot_frequency, specs.gain, { freq: [], series: [] });
-    draw("impedance", api.plot_frequency, specs.impedance, { freq: [], series: [] });
+    draw("gain", api.plot_frequency, specs.gain, { series: [] });
+    draw("impedance", api.plot_frequency, specs.impedance, { series: [] });
     draw("loadlines", api.plot_xy, specs.loadlines, { curves: [] });
   }
 
@@ -2158,6 +2147,23 @@ class StagewrightCalc extends HTMLElement {
     reader.onerror = () => this._showLoadError(`${file.name} could not be read`);
     reader.readAsText(file);
   }
+}
+
+/** Phase in degrees made continuous (no jump between −180° and 180°), for
+ * the plot; the report and the sweep keep the principal value. */
+function unwrapDegrees(values) {
+  const out = new Float64Array(values.length);
+  let shift = 0;
+  for (let i = 0; i < values.length; i++) {
+    const v = values[i];
+    if (i > 0 && Number.isFinite(v) && Number.isFinite(values[i - 1])) {
+      const step = v - values[i - 1];
+      if (step > 180) shift -= 360;
+      else if (step < -180) shift += 360;
+    }
+    out[i] = v + shift;
+  }
+  return out;
 }
 
 function pct(x) {

@@ -3,12 +3,12 @@
 // so nothing leaves the machine.
 
 import assert from "node:assert/strict";
-import { readFileSync } from "node:fs";
+import { mkdirSync, readFileSync, writeFileSync } from "node:fs";
 import path from "node:path";
 import { after, before, describe, test } from "node:test";
 import { fileURLToPath } from "node:url";
 
-import { launch, scriptPath, screenshot } from "./helpers.mjs";
+import { cliReport, jsonDifferences, launch, scriptPath, screenshot } from "./helpers.mjs";
 
 const here = path.dirname(fileURLToPath(import.meta.url));
 const ORIGIN = "https://wiki.example";
@@ -25,6 +25,9 @@ const design = (title, extra = {}) => ({
 });
 
 const b64url = (obj) => Buffer.from(JSON.stringify(obj)).toString("base64url");
+
+/** A title that would run script if it were ever inserted as HTML. */
+const INJECTED = `<img src=x onerror="window.pwned=true;alert(1)"><script>window.pwned=true</script>`;
 
 /** Serves `pages` (path -> {html, csp}) and the script under ORIGIN. */
 async function serve(context, pages) {
@@ -61,6 +64,7 @@ describe("embedding dist/stagewright.js", () => {
   let browser;
 
   before(async () => {
+    mkdirSync(path.join(here, "artifacts"), { recursive: true });
     browser = await launch({ viewport: { width: 1280, height: 900 } });
     await serve(browser.context, {
       "/twice.html": {
@@ -83,6 +87,10 @@ describe("embedding dist/stagewright.js", () => {
       "/csp-no-wasm.html": {
         csp: "script-src 'self'",
         html: page("", '<stagewright-calc></stagewright-calc><script src="/stagewright.js"></script>'),
+      },
+      "/injected.html": {
+        csp: "script-src 'self' 'wasm-unsafe-eval'",
+        html: page("", `<div data-stagewright data-design="${b64url(design(INJECTED))}"></div><script src="/stagewright.js"></script>`),
       },
       "/late.html": {
         html: page('<script src="/stagewright.js"></script>', '<div id="slot"></div>'),
@@ -125,16 +133,78 @@ describe("embedding dist/stagewright.js", () => {
     await p.close();
   });
 
+  test("two elements on one page compute and stay independent", async () => {
+    const p = await browser.context.newPage();
+    await p.goto(`${ORIGIN}/twice.html`);
+    await understood(p, "#first");
+    await understood(p, "div[data-stagewright] stagewright-calc");
+    await p.waitForFunction(() => Array.from(document.querySelectorAll("stagewright-calc")).every((el) => el.report));
+    const reports = () => p.evaluate(() => Array.from(document.querySelectorAll("stagewright-calc")).map((el) => el.report));
+    const [first, second] = await reports();
+    assert.equal(first.design.stage, "common-emitter");
+    assert.equal(second.design.stage, "common-collector");
+    // The first design, as a file, gives the same report on the command line.
+    const file = path.join(here, "artifacts", "first-stage.json");
+    writeFileSync(file, JSON.stringify(design("First stage")));
+    assert.deepEqual(jsonDifferences(first, cliReport(file)), []);
+    // An edit in the first element leaves the second alone.
+    await p.locator("#first .field[data-key='rc'] input").fill("4k7");
+    await p.waitForFunction((vc) => document.querySelector("#first").report.operating_point.vc !== vc, first.operating_point.vc);
+    const [first2, second2] = await reports();
+    assert.notEqual(first2.operating_point.vc, first.operating_point.vc);
+    assert.deepEqual(jsonDifferences(second2, second), [], "the other element's report is unchanged");
+    const shown = await p.evaluate(() =>
+      Array.from(document.querySelectorAll("stagewright-calc")).map((el) => el.shadowRoot.querySelector(".field[data-key='rc'] input").value));
+    assert.equal(shown[0], "4k7");
+    assert.notEqual(shown[1], "4k7");
+    assert.deepEqual(browser.errors, []);
+    await p.close();
+  });
+
+  test("an injected title stays inert text", async () => {
+    const p = await browser.context.newPage();
+    await p.goto(`${ORIGIN}/injected.html`);
+    await p.waitForFunction(() => {
+      const el = document.querySelector("stagewright-calc");
+      return el && el.report;
+    }, null, { timeout: 15000 });
+    await p.waitForTimeout(300);
+    const seen = await p.evaluate(() => {
+      const el = document.querySelector("stagewright-calc");
+      const root = el.shadowRoot;
+      return {
+        heading: root.querySelector("h2.title").textContent,
+        reportTitle: el.report.design.title,
+        images: root.querySelectorAll("img").length + document.querySelectorAll("img").length,
+        scripts: root.querySelectorAll("script").length,
+        pwned: window.pwned === true,
+      };
+    });
+    assert.equal(seen.heading, INJECTED);
+    assert.equal(seen.reportTitle, INJECTED);
+    assert.deepEqual([seen.images, seen.scripts, seen.pwned], [0, 0, false]);
+    assert.ok(!browser.errors.some((e) => e.startsWith("dialog")), "no script ran");
+    assert.deepEqual(onlyWiki(browser.requests), []);
+    await p.close();
+  });
+
   test("works under Content-Security-Policy: script-src 'self' 'wasm-unsafe-eval'", async () => {
     const p = await browser.context.newPage();
     await p.goto(`${ORIGIN}/csp.html`);
     await understood(p, "stagewright-calc");
     const input = p.locator("stagewright-calc .field[data-key='rc'] input");
     await p.locator("stagewright-calc details.design-box > summary").click();
+    const before = await p.evaluate(() => document.querySelector("stagewright-calc").report);
+    assert.ok(before && before.operating_point.region, "the engine computed under the policy");
     await input.fill("4k7");
     await p.locator("stagewright-calc .field[data-key='rc'] .understood", { hasText: "4.7 kΩ" }).waitFor({ timeout: 2000 });
+    const after = await p.evaluate(() => document.querySelector("stagewright-calc").report);
+    assert.notEqual(after.midband.voltage_gain, before.midband.voltage_gain, "and recomputed after the edit");
+    const drawn = await p.evaluate(() =>
+      Array.from(document.querySelector("stagewright-calc").shadowRoot.querySelectorAll("canvas")).map((c) => c.width > 0 && !c.hasAttribute("data-error")));
+    assert.deepEqual(drawn, [true, true, true], "the plots draw under the policy");
     assert.deepEqual(browser.errors, []);
-    await screenshot(p, "embed-csp.png");
+    await screenshot(p, "view-embed.png");
     await p.close();
   });
 

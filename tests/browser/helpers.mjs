@@ -2,6 +2,7 @@
 // playwright-core, a fresh profile per browser (deleted afterwards), and a
 // record of every request the page makes.
 
+import { spawnSync } from "node:child_process";
 import { mkdirSync, mkdtempSync, rmSync } from "node:fs";
 import os from "node:os";
 import path from "node:path";
@@ -89,6 +90,55 @@ export async function waitReady(page, selector = "stagewright-calc") {
 export async function screenshot(page, name, options = {}) {
   mkdirSync(artifacts, { recursive: true });
   const file = path.join(artifacts, name);
+  // From the top, so sticky parts (the form column, table heads) sit where
+  // a reader first sees them.
+  await page.evaluate(() => window.scrollTo(0, 0));
   await page.screenshot({ path: file, fullPage: true, ...options });
   return file;
+}
+
+/** The native command line, built by scripts/test-browser.sh with
+ * `cargo build --release -p stagewright --bin stagewright`. */
+export const cliPath = process.env.STAGEWRIGHT_CLI || path.join(root, "target", "release", "stagewright");
+
+/** `stagewright analyze FILE --json`, parsed. The exit status says pass (0)
+ * or fail (1); either way the report is on standard output. */
+export function cliReport(file) {
+  const r = spawnSync(cliPath, ["analyze", file, "--json"], { encoding: "utf8" });
+  if (r.error) throw r.error;
+  if (r.status !== 0 && r.status !== 1) throw new Error(`stagewright analyze ${file}: exit ${r.status}: ${r.stderr}`);
+  return JSON.parse(r.stdout);
+}
+
+/** Differences between two JSON documents: same keys in the same order,
+ * same strings and booleans, numbers within a relative difference `rel`
+ * (absolute below 1e-300). Returns a list of messages, empty when equal. */
+export function jsonDifferences(a, b, rel = 1e-9, where = "") {
+  const out = [];
+  const kind = (v) => (v === null ? "null" : Array.isArray(v) ? "array" : typeof v);
+  if (kind(a) !== kind(b)) return [`${where || "."}: ${kind(a)} ${JSON.stringify(a)} vs ${kind(b)} ${JSON.stringify(b)}`];
+  if (kind(a) === "number") {
+    const d = Math.abs(a - b);
+    const scale = Math.max(Math.abs(a), Math.abs(b));
+    if (!(d <= rel * scale || d < 1e-300)) out.push(`${where}: ${a} vs ${b} (relative difference ${(d / scale).toExponential(2)})`);
+  } else if (kind(a) === "array") {
+    if (a.length !== b.length) return [`${where}: ${a.length} entries vs ${b.length}`];
+    a.forEach((v, i) => out.push(...jsonDifferences(v, b[i], rel, `${where}[${i}]`)));
+  } else if (kind(a) === "object") {
+    const ka = Object.keys(a);
+    const kb = Object.keys(b);
+    if (ka.join() !== kb.join()) return [`${where || "."}: keys ${ka.join(",")} vs ${kb.join(",")}`];
+    for (const k of ka) out.push(...jsonDifferences(a[k], b[k], rel, where ? `${where}.${k}` : k));
+  } else if (a !== b) {
+    out.push(`${where}: ${JSON.stringify(a)} vs ${JSON.stringify(b)}`);
+  }
+  return out;
+}
+
+/** Waits for the element's first report. */
+export async function waitReport(page, selector = "stagewright-calc") {
+  await page.waitForFunction((sel) => {
+    const el = document.querySelector(sel);
+    return !!(el && el.report);
+  }, selector, { timeout: 15000 });
 }

@@ -1,6 +1,7 @@
 // dist/stagewright.html opened from file:// in Debian's Chromium: no
 // network, value fields, inline errors, snapping, the diagram, the address
-// fragment, user text shown as text, plots, screenshots.
+// fragment, user text shown as text, plots from the engine, timing,
+// screenshots of each view.
 
 import assert from "node:assert/strict";
 import { readFileSync } from "node:fs";
@@ -8,11 +9,16 @@ import path from "node:path";
 import { after, before, describe, test } from "node:test";
 import { fileURLToPath } from "node:url";
 
-import { htmlUrl, launch, networkRequests, screenshot, waitReady } from "./helpers.mjs";
-import { sampleCurves, sampleSweep } from "./sample-data.mjs";
+import { measure, summarize } from "./bench.mjs";
+import { htmlUrl, launch, networkRequests, root, screenshot, waitReady, waitReport } from "./helpers.mjs";
 
 const here = path.dirname(fileURLToPath(import.meta.url));
-const sampleReport = JSON.parse(readFileSync(path.join(here, "fixtures", "sample-report.json"), "utf8"));
+
+/** The standalone page's address with an example design in its fragment. */
+function exampleUrl(name) {
+  const text = readFileSync(path.join(root, "examples", `${name}.json`), "utf8");
+  return `${htmlUrl}#design=${Buffer.from(text).toString("base64url")}`;
+}
 
 /** The shadow-root text of `selector` inside the element. */
 function shadowText(page, selector) {
@@ -27,18 +33,6 @@ function field(page, key) {
   return page.locator(`stagewright-calc .field[data-key="${key}"]`);
 }
 
-/** Puts a report and plot data on screen as the analysis will. */
-function showSample(page) {
-  return page.evaluate(([report, sweep, curves]) => {
-    const el = document.querySelector("stagewright-calc");
-    el._report = report;
-    el._analysis = { report, sweep, curves };
-    el.renderReport(report);
-    el._annotateDiagram(report);
-    el._drawPlots();
-  }, [sampleReport, sampleSweep(), sampleCurves()]);
-}
-
 describe("standalone page from file://", () => {
   let browser;
   let page;
@@ -48,6 +42,7 @@ describe("standalone page from file://", () => {
     page = await browser.page();
     await page.goto(htmlUrl);
     await waitReady(page);
+    await waitReport(page);
   });
 
   after(async () => {
@@ -73,7 +68,6 @@ describe("standalone page from file://", () => {
   });
 
   test("an invalid entry is flagged in place, naming the field, and the last good value stays", async () => {
-    await showSample(page);
     const before = await shadowText(page, 'output[data-key="operating_point.ic"]');
     const input = field(page, "rc").locator("input");
     await input.fill("4k7k");
@@ -142,10 +136,9 @@ describe("standalone page from file://", () => {
   });
 
   test("plots are drawn sharp at the canvas size and numbers are in a table", async () => {
-    await showSample(page);
     const info = await page.evaluate(() => {
       const el = document.querySelector("stagewright-calc");
-      const c = el._plotParts.gain.canvas;
+      const c = el.shadowRoot.querySelector('figure[data-plot="gain"] canvas');
       const ctx = c.getContext("2d");
       const data = ctx.getImageData(0, 0, c.width, c.height).data;
       const colours = new Set();
@@ -158,57 +151,61 @@ describe("standalone page from file://", () => {
     await page.locator('stagewright-calc figure[data-plot="gain"] summary').click();
     await page.locator('stagewright-calc figure[data-plot="gain"] tbody tr').first().waitFor({ timeout: 2000 });
     const rows = await page.locator('stagewright-calc figure[data-plot="gain"] tbody tr').count();
-    assert.equal(rows, sampleSweep().freq.length);
+    assert.ok(rows >= 81, `a row per frequency, 20 a decade over four decades or more: ${rows}`);
     const firstFreq = await page.locator('stagewright-calc figure[data-plot="gain"] tbody tr th').first().textContent();
-    assert.equal(firstFreq, "1 Hz");
+    assert.match(firstFreq, /^(1|10|100) (m|k|M)?Hz$/, "the sweep starts on a whole decade");
+    const errors = await page.evaluate(() =>
+      Array.from(document.querySelector("stagewright-calc").shadowRoot.querySelectorAll("canvas[data-error]")).length);
+    assert.equal(errors, 0, "every plot drew");
     await page.locator('stagewright-calc figure[data-plot="gain"] summary').click();
     await page.waitForFunction(() => !document.querySelector("stagewright-calc").shadowRoot.querySelector('figure[data-plot="gain"] details').open);
   });
 
   test("an edit is recomputed and redrawn quickly", async () => {
-    await showSample(page);
-    const median = await page.evaluate(() => {
-      const el = document.querySelector("stagewright-calc");
-      const input = el.shadowRoot.querySelector("input[name=rc]");
-      const times = [];
-      for (let i = 0; i < 41; i++) {
-        input.value = `${(3 + (i % 10) / 10).toFixed(1)}k`;
-        const t0 = performance.now();
-        input.dispatchEvent(new Event("input"));
-        el._drawPlots();
-        times.push(performance.now() - t0);
-      }
-      times.sort((a, b) => a - b);
-      return times[20];
-    });
-    console.log(`# edit + redraw of three plots: median ${median.toFixed(1)} ms`);
-    assert.ok(median < 16, `median ${median} ms`);
+    const s = summarize(await measure(page, 41));
+    console.log(`# recompute + redraw after an edit: median ${s.median.toFixed(1)} ms, p95 ${s.p95.toFixed(1)} ms`);
+    // The budget is 16 ms (bench.mjs reports it); twice that here, so a
+    // busy CI machine does not fail the run while a regression still does.
+    assert.ok(s.median < 32, `median ${s.median} ms`);
   });
 
-  test("screenshots", async () => {
-    await field(page, "title").locator("input").fill("Example: small-signal common-emitter stage");
-    await field(page, "rc").locator("input").fill("3k9");
-    await showSample(page);
-    await screenshot(page, "standalone-light.png");
+  test("screenshots: standalone (light) and print", async () => {
+    await page.goto(exampleUrl("transducer-gain-stage"));
+    await page.waitForFunction(() => document.querySelector("stagewright-calc").report.design.title.startsWith("Transducer"));
+    await page.waitForTimeout(200);
+    await screenshot(page, "view-standalone-light.png");
     // The print layout for design reviews.
     await page.emulateMedia({ media: "print" });
     await page.evaluate(() => window.dispatchEvent(new Event("beforeprint")));
-    await page.waitForTimeout(200);
-    await screenshot(page, "print.png");
+    await page.waitForTimeout(300);
+    await screenshot(page, "view-print.png");
     await page.emulateMedia({ media: "screen" });
     await page.evaluate(() => window.dispatchEvent(new Event("afterprint")));
+    assert.deepEqual(networkRequests(browser.requests), []);
+    assert.deepEqual(browser.errors, []);
   });
 });
 
 describe("standalone page, other looks", () => {
-  test("dark, high-DPI, each stage, compact and read-only", async () => {
+  test("dark, high-DPI, each stage, cautions, compact and read-only", async () => {
     const browser = await launch({ colorScheme: "dark", deviceScaleFactor: 2, viewport: { width: 1200, height: 900 } });
     try {
       const page = await browser.page();
-      await page.goto(htmlUrl);
+      await page.goto(exampleUrl("pnp-gain-stage"));
       await waitReady(page);
-      await showSample(page);
-      await screenshot(page, "standalone-dark-2x.png");
+      await waitReport(page);
+      // A supply above the extra-low-voltage limit: cautions, a failed rating.
+      await field(page, "supply").locator("input").fill("70");
+      await page.locator("stagewright-calc section.cautions li").first().waitFor({ timeout: 2000 });
+      const cautions = await page.evaluate(() => document.querySelector("stagewright-calc").report.cautions.map((c) => c.id));
+      assert.ok(cautions.length > 0, "the design draws cautions");
+      assert.equal(
+        await page.locator("stagewright-calc section.cautions li").count(),
+        cautions.length,
+        "every caution is listed",
+      );
+      await screenshot(page, "view-standalone-dark.png");
+      await field(page, "supply").locator("input").fill("12");
       for (const stage of ["common-collector", "common-base"]) {
         await field(page, "stage").locator("select").selectOption(stage);
         const card = page.locator("stagewright-calc .card-diagram");
@@ -219,20 +216,41 @@ describe("standalone page, other looks", () => {
         if (stage === "common-base") assert.ok(parts.includes("c_base"));
         else assert.ok(!parts.includes("c_base") && !parts.includes("c_emitter"));
       }
+      assert.deepEqual(networkRequests(browser.requests), []);
+      assert.deepEqual(browser.errors, []);
+    } finally {
+      await browser.close();
+    }
+  });
+
+  test("compact and read-only views", async () => {
+    const browser = await launch({ viewport: { width: 1000, height: 900 } });
+    try {
+      const page = await browser.page();
+      await page.goto(exampleUrl("sensor-cable-buffer"));
+      await waitReady(page);
+      await waitReport(page);
+      await page.evaluate(() => document.querySelector("stagewright-calc").setAttribute("compact", ""));
+      await page.waitForTimeout(200);
+      const compact = await page.evaluate(() => document.querySelector("stagewright-calc").shadowRoot.querySelector("details.design-box").open);
+      assert.equal(compact, false, "compact folds the form away");
+      await screenshot(page, "view-compact.png");
       await page.evaluate(() => {
         const el = document.querySelector("stagewright-calc");
-        el.setAttribute("compact", "");
+        el.removeAttribute("compact");
         el.setAttribute("readonly", "");
       });
+      await page.waitForTimeout(200);
       const ro = await page.evaluate(() => {
         const root = document.querySelector("stagewright-calc").shadowRoot;
         return {
           readOnly: root.querySelector("input[name=rc]").readOnly,
           formOpen: root.querySelector("details.design-box").open,
+          snaps: Array.from(root.querySelectorAll("button.snap")).filter((b) => !b.hidden).length,
         };
       });
-      assert.deepEqual(ro, { readOnly: true, formOpen: false });
-      await screenshot(page, "compact-readonly-dark.png");
+      assert.deepEqual(ro, { readOnly: true, formOpen: true, snaps: 0 });
+      await screenshot(page, "view-readonly.png");
       assert.deepEqual(networkRequests(browser.requests), []);
       assert.deepEqual(browser.errors, []);
     } finally {
@@ -260,6 +278,9 @@ describe("standalone page, other looks", () => {
         return { title: el.shadowRoot.querySelector("h2.title").textContent, stage: el.design.stage, rc: el.design.parts.rc };
       });
       assert.deepEqual(seen, { title: design.title, stage: "common-base", rc: "1k" });
+      await waitReport(page);
+      const reportTitle = await page.evaluate(() => document.querySelector("stagewright-calc").report.design.title);
+      assert.equal(reportTitle, design.title, "the report carries the title as text");
       await page.waitForTimeout(300);
       assert.ok(!browser.errors.some((e) => e.startsWith("dialog")));
       await screenshot(page, "fragment-narrow.png");

@@ -1,27 +1,14 @@
 //! Conversions between Rust values and JavaScript values.
 
-use serde::Serialize;
 use wasm_bindgen::{JsCast, JsValue};
 
-/// An error as the page sees it: the field it is about (as the design file
-/// spells it, e.g. `parts.rc`) and a message ready to show.
-#[derive(Serialize)]
-struct FieldError<'a> {
-    field: &'a str,
-    message: &'a str,
-}
-
-/// Serializes `value` as plain JSON-like JavaScript data: objects rather than
-/// `Map`s, `null` rather than `undefined` for `None`.
-pub(crate) fn to_js<T: Serialize + ?Sized>(value: &T) -> Result<JsValue, JsValue> {
-    value
-        .serialize(&serde_wasm_bindgen::Serializer::json_compatible())
-        .map_err(|e| field_error("", &e.to_string()))
-}
-
-/// A JavaScript object `{field, message}`.
+/// A JavaScript object `{field, message}`: the field an error is about (as
+/// the design file spells it, e.g. `parts.rc`) and a message ready to show.
 pub(crate) fn field_error(field: &str, message: &str) -> JsValue {
-    to_js_infallible(&FieldError { field, message })
+    let o = Builder::new();
+    o.set("field", field);
+    o.set("message", message);
+    o.into()
 }
 
 /// The JavaScript form of a core error.
@@ -29,10 +16,26 @@ pub(crate) fn core_error(err: &stagewright::Error) -> JsValue {
     field_error(err.field(), &err.to_string())
 }
 
-fn to_js_infallible<T: Serialize>(value: &T) -> JsValue {
-    value
-        .serialize(&serde_wasm_bindgen::Serializer::json_compatible())
-        .unwrap_or(JsValue::NULL)
+/// A plain JavaScript object built key by key (cheaper than serializing a
+/// struct when the values are already JavaScript values or typed arrays).
+pub(crate) struct Builder(js_sys::Object);
+
+impl Builder {
+    pub(crate) fn new() -> Self {
+        Builder(js_sys::Object::new())
+    }
+
+    /// Sets `key` to `value`; a failure (impossible on a fresh plain
+    /// object) is ignored.
+    pub(crate) fn set(&self, key: &str, value: impl Into<JsValue>) {
+        let _ = js_sys::Reflect::set(&self.0, &JsValue::from_str(key), &value.into());
+    }
+}
+
+impl From<Builder> for JsValue {
+    fn from(b: Builder) -> JsValue {
+        b.0.into()
+    }
 }
 
 /// Read access to a plain JavaScript object handed over by the page.
@@ -68,20 +71,13 @@ impl Obj {
         self.get(key).is_truthy()
     }
 
-    /// Numbers from an `Array` or a `Float64Array`; `null` and anything
-    /// that is not a number become NaN (a gap in a line).
+    /// Numbers from a `Float64Array` (NaN is a gap in a line); anything
+    /// else reads as no numbers.
     pub(crate) fn numbers(&self, key: &str) -> Vec<f64> {
-        let v = self.get(key);
-        if let Some(a) = v.dyn_ref::<js_sys::Float64Array>() {
-            return a.to_vec();
-        }
-        if js_sys::Array::is_array(&v) {
-            return js_sys::Array::from(&v)
-                .iter()
-                .map(|x| x.as_f64().unwrap_or(f64::NAN))
-                .collect();
-        }
-        Vec::new()
+        self.get(key)
+            .dyn_ref::<js_sys::Float64Array>()
+            .map(js_sys::Float64Array::to_vec)
+            .unwrap_or_default()
     }
 
     /// The objects of an array.

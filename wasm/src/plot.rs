@@ -5,15 +5,13 @@
 //! object describing what to draw, read key by key (missing keys take
 //! defaults). Data arrays may be `Array`s or `Float64Array`s; `null`, `NaN`
 //! and infinities break a line rather than drawing it to the edge. Colours are CSS colours in `#rrggbb` or
-//! `rgb[a](r, g, b[, a])` form, so the page can pass the resolved values of
+//! `#rrggbbaa` form, so the page can pass the resolved values of
 //! its CSS custom properties.
 //!
 //! The canvas backing store is sized to the canvas's CSS box times
 //! `devicePixelRatio` on every draw, so plots stay sharp on high-DPI screens
 //! and follow resizes. Nothing here computes circuit quantities; the numbers
 //! arrive ready to plot.
-
-use std::fmt::Display;
 
 use plotters::coord::ranged1d::{DefaultFormatting, KeyPointHint};
 use plotters::coord::Shift;
@@ -281,7 +279,7 @@ impl Axis {
     /// Where `v` falls between the ends, 0 at `lo` and 1 at `hi`.
     fn fraction(&self, v: f64) -> f64 {
         let t = if self.log {
-            (v.ln() - self.lo.ln()) / (self.hi.ln() - self.lo.ln())
+            (libm::log(v) - libm::log(self.lo)) / (libm::log(self.hi) - libm::log(self.lo))
         } else {
             (v - self.lo) / (self.hi - self.lo)
         };
@@ -316,42 +314,32 @@ impl Ranged for Axis {
     }
 }
 
-/// Turns any drawing error into a message.
-fn msg<E: Display>(e: E) -> String {
-    e.to_string()
+/// Turns a drawing error into a message. The canvas's own error (a
+/// JavaScript value) is not spelled out: formatting it would bring the
+/// glue's value printer into the page for a message nobody reads.
+fn msg<E>(_: E) -> String {
+    String::from("the canvas refused a drawing operation")
 }
 
-/// Sizes a canvas's backing store to its CSS box × `devicePixelRatio`
-/// (which also clears it), or to `spec.pixel_size` with
-/// `spec.pixel_ratio` when the page gives them. Returns the pixel ratio, or
-/// `None` when the canvas is not laid out (hidden), in which case nothing is
-/// drawn.
+/// Sizes a canvas's backing store (which also clears it) to
+/// `spec.pixel_size` (device pixels, as the page's ResizeObserver or its
+/// CSS size × `devicePixelRatio` gives them) with `spec.pixel_ratio`.
+/// Returns the pixel ratio, or `None` when the canvas has no size (hidden),
+/// in which case nothing is drawn.
 fn fit(canvas: &HtmlCanvasElement, spec: &Obj) -> Option<f64> {
-    // The page may pass the size its ResizeObserver saw (device pixels of
-    // the content box), which spares a forced layout here.
-    let hint = spec.numbers("pixel_size");
+    let size = spec.numbers("pixel_size");
     let ratio = spec
         .num("pixel_ratio")
-        .filter(|r| r.is_finite() && *r > 0.0);
-    if let ([w, h], Some(dpr)) = (hint.as_slice(), ratio) {
-        if *w >= 1.0 && *h >= 1.0 {
-            canvas.set_width(w.round() as u32);
-            canvas.set_height(h.round() as u32);
-            return Some(dpr);
-        }
-        return None;
-    }
-    let dpr = web_sys::window()
-        .map(|w| w.device_pixel_ratio())
         .filter(|r| r.is_finite() && *r > 0.0)
         .unwrap_or(1.0);
-    let (cw, ch) = (canvas.client_width(), canvas.client_height());
-    if cw <= 0 || ch <= 0 {
-        return None;
+    match size.as_slice() {
+        [w, h] if *w >= 1.0 && *h >= 1.0 => {
+            canvas.set_width(w.round() as u32);
+            canvas.set_height(h.round() as u32);
+            Some(ratio)
+        }
+        _ => None,
     }
-    canvas.set_width((f64::from(cw) * dpr).round() as u32);
-    canvas.set_height((f64::from(ch) * dpr).round() as u32);
-    Some(dpr)
 }
 
 fn backend(canvas: &HtmlCanvasElement) -> Result<CanvasBackend, JsValue> {
@@ -365,8 +353,8 @@ fn backend(canvas: &HtmlCanvasElement) -> Result<CanvasBackend, JsValue> {
 /// JS: `plot_frequency(canvas: HTMLCanvasElement, spec: {freq, series:
 /// [{name, values, color, dashed?}], y_unit, y_log?, phase?: {name, values,
 /// color}, x_markers?: [{x, label, color}], empty_text?, theme: {background,
-/// foreground, grid, font_family, font_size}, pixel_size?: [w, h],
-/// pixel_ratio?}): boolean` — false when the
+/// foreground, grid, font_family, font_size}, pixel_size: [w, h],
+/// pixel_ratio}): boolean` — false when the
 /// canvas is hidden and nothing was drawn; throws `{field: "plot", message}`.
 #[wasm_bindgen]
 pub fn plot_frequency(canvas: &HtmlCanvasElement, spec: JsValue) -> Result<bool, JsValue> {
@@ -387,7 +375,7 @@ pub fn plot_frequency(canvas: &HtmlCanvasElement, spec: JsValue) -> Result<bool,
 /// JS: `plot_xy(canvas: HTMLCanvasElement, spec: {curves: [{name, x, y,
 /// color, width?, dashed?}], markers?: [{x, y, label, color, shape?}],
 /// x_name, y_name, x_unit, y_unit, x_range?, y_range?, empty_text?, theme,
-/// pixel_size?: [w, h], pixel_ratio?}):
+/// pixel_size: [w, h], pixel_ratio}):
 /// boolean` — false when the canvas is hidden; throws `{field: "plot",
 /// message}`.
 #[wasm_bindgen]
@@ -403,49 +391,23 @@ pub fn plot_xy(canvas: &HtmlCanvasElement, spec: JsValue) -> Result<bool, JsValu
     Ok(true)
 }
 
-/// Parses `#rgb`, `#rrggbb`, `#rrggbbaa` and `rgb[a](r, g, b[, a])`.
+/// Parses `#rrggbb` and `#rrggbbaa` (the page resolves its CSS custom
+/// properties to these forms); anything else is `fallback`.
 /// Anything else falls back to `fallback`.
 fn color(text: &str, fallback: RGBAColor) -> RGBAColor {
     let t = text.trim();
     if let Some(hex) = t.strip_prefix('#') {
-        let digit = |i: usize, n: usize| u8::from_str_radix(hex.get(i..i + n)?, 16).ok();
-        return match hex.len() {
-            3 => (|| {
-                Some(RGBAColor(
-                    digit(0, 1)? * 17,
-                    digit(1, 1)? * 17,
-                    digit(2, 1)? * 17,
-                    1.0,
-                ))
-            })(),
-            6 => (|| Some(RGBAColor(digit(0, 2)?, digit(2, 2)?, digit(4, 2)?, 1.0)))(),
-            8 => (|| {
-                Some(RGBAColor(
-                    digit(0, 2)?,
-                    digit(2, 2)?,
-                    digit(4, 2)?,
-                    f64::from(digit(6, 2)?) / 255.0,
-                ))
-            })(),
-            _ => None,
-        }
-        .unwrap_or(fallback);
-    }
-    let inner = t
-        .strip_prefix("rgba(")
-        .or_else(|| t.strip_prefix("rgb("))
-        .and_then(|s| s.strip_suffix(')'));
-    if let Some(inner) = inner {
-        let parts: Vec<f64> = inner
-            .split([',', ' ', '/'])
-            .filter(|s| !s.is_empty())
-            .filter_map(|s| s.trim().parse().ok())
-            .collect();
-        if parts.len() >= 3 {
-            let c = |v: f64| v.round().clamp(0.0, 255.0) as u8;
-            let a = parts.get(3).copied().unwrap_or(1.0).clamp(0.0, 1.0);
-            return RGBAColor(c(parts[0]), c(parts[1]), c(parts[2]), a);
-        }
+        let byte = |i: usize| {
+            hex.get(i..i + 2)
+                .and_then(|d| u8::from_str_radix(d, 16).ok())
+        };
+        return match (hex.len(), byte(0), byte(2), byte(4)) {
+            (6, Some(r), Some(g), Some(b)) => RGBAColor(r, g, b, 1.0),
+            (8, Some(r), Some(g), Some(b)) => {
+                RGBAColor(r, g, b, byte(6).map_or(1.0, |a| f64::from(a) / 255.0))
+            }
+            _ => fallback,
+        };
     }
     fallback
 }
@@ -492,13 +454,13 @@ impl Look {
     }
 
     fn text(&self) -> TextStyle<'_> {
-        (self.family.as_str(), self.font)
+        (FontFamily::Name(&self.family), self.font)
             .into_font()
             .color(&self.fg)
     }
 
     fn small_text(&self) -> TextStyle<'_> {
-        (self.family.as_str(), self.font * 0.92)
+        (FontFamily::Name(&self.family), self.font * 0.92)
             .into_font()
             .color(&self.fg)
     }
@@ -627,8 +589,8 @@ fn draw_frequency(root: &Area, spec: &FrequencySpec, dpr: f64) -> Result<(), Str
     let show_x_labels = bottom.is_none();
     let x_axis = Axis::log(freq_lo, freq_hi, log_ticks(freq_lo, freq_hi, max_labels));
     let y_axis = if spec.y_log {
-        let lo_d = 10f64.powf(lo.log10().floor());
-        let hi_d = 10f64.powf(hi.log10().ceil());
+        let lo_d = libm::pow(10.0, libm::log10(lo).floor());
+        let hi_d = libm::pow(10.0, libm::log10(hi).ceil());
         let hi_d = if hi_d / lo_d < 10.0 {
             lo_d * 10.0
         } else {
@@ -717,22 +679,19 @@ fn lines(
         }
         let c = color(&m.color, look.fg.mix(0.6));
         let style = look.line(c, 1.0);
-        chart
-            .draw_series(DashedLineSeries::new(
-                [(m.x, y_span.0), (m.x, y_span.1)],
-                look.px(4.0),
-                look.px(3.0),
-                style,
-            ))
-            .map_err(msg)?;
+        polyline(
+            chart,
+            vec![(m.x, y_span.0), (m.x, y_span.1)],
+            style,
+            Some((look.px(4.0), look.px(3.0))),
+        )?;
         if !m.label.is_empty() {
             let text = look.small_text().color(&c);
-            let at = (m.x, y_span.1);
-            chart
-                .draw_series(std::iter::once(
-                    EmptyElement::at(at)
-                        + Text::new(m.label.clone(), (look.px(3.0), look.px(2.0)), text),
-                ))
+            let area = chart.plotting_area().strip_coord_spec();
+            let (bx, by) = area.get_base_pixel();
+            let (x, y) = chart.backend_coord(&(m.x, y_span.1));
+            let at = (x - bx + look.px(3.0), y - by + look.px(2.0));
+            area.draw(&Text::new(m.label.as_str(), at, text))
                 .map_err(msg)?;
         }
     }
@@ -741,21 +700,9 @@ fn lines(
     for (s, rs) in series {
         let c = color(&s.color, look.fg);
         let style = look.line(c, 2.0);
+        let dash = s.dashed.then(|| (look.px(6.0), look.px(4.0)));
         for run in rs {
-            if s.dashed {
-                chart
-                    .draw_series(DashedLineSeries::new(
-                        run.iter().copied(),
-                        look.px(6.0),
-                        look.px(4.0),
-                        style,
-                    ))
-                    .map_err(msg)?;
-            } else {
-                chart
-                    .draw_series(LineSeries::new(run.iter().copied(), style))
-                    .map_err(msg)?;
-            }
+            polyline(chart, run.clone(), style, dash)?;
         }
         if !s.name.is_empty() {
             entries.push(Entry {
@@ -780,6 +727,26 @@ fn lines(
         }
         legend(chart, look, &entries, &avoid)?;
     }
+    Ok(())
+}
+
+/// Draws a polyline in data coordinates, solid or with `dash` (dash and
+/// gap in backing-store pixels). Every line goes through here, so plotters'
+/// line code is instantiated once.
+fn polyline(
+    chart: &mut Chart<'_>,
+    points: Vec<(f64, f64)>,
+    style: ShapeStyle,
+    dash: Option<(i32, i32)>,
+) -> Result<(), String> {
+    match dash {
+        Some((size, gap)) => chart
+            .draw_series(DashedLineSeries::new(points, size, gap, style))
+            .map_err(msg)?,
+        None => chart
+            .draw_series(LineSeries::new(points, style))
+            .map_err(msg)?,
+    };
     Ok(())
 }
 
@@ -859,7 +826,7 @@ fn legend(
         for pair in px.windows(2) {
             let (a, b) = (pair[0], pair[1]);
             let (dx, dy) = (f64::from(b.0 - a.0), f64::from(b.1 - a.1));
-            let n = ((dx.hypot(dy) / step).ceil() as usize).clamp(1, 2000);
+            let n = ((libm::hypot(dx, dy) / step).ceil() as usize).clamp(1, 2000);
             for i in 0..=n {
                 let t = i as f64 / n as f64;
                 count(f64::from(a.0) + dx * t, f64::from(a.1) + dy * t);
@@ -1017,21 +984,9 @@ fn draw_xy(root: &Area, spec: &XySpec, dpr: f64) -> Result<(), String> {
                 segs.push(Vec::new());
             }
         }
+        let dash = c.dashed.then(|| (look.px(6.0), look.px(4.0)));
         for seg in segs.into_iter().filter(|s| !s.is_empty()) {
-            if c.dashed {
-                chart
-                    .draw_series(DashedLineSeries::new(
-                        seg,
-                        look.px(6.0),
-                        look.px(4.0),
-                        style,
-                    ))
-                    .map_err(msg)?;
-            } else {
-                chart
-                    .draw_series(LineSeries::new(seg, style))
-                    .map_err(msg)?;
-            }
+            polyline(&mut chart, seg, style, dash)?;
         }
         if !c.name.is_empty() {
             entries.push(Entry {
@@ -1043,34 +998,29 @@ fn draw_xy(root: &Area, spec: &XySpec, dpr: f64) -> Result<(), String> {
     }
 
     let r = look.px(4.0);
+    // Markers are drawn in pixels on the plotting area, like the legend, so
+    // that plotters' drawing code is instantiated once for each shape.
+    let area = chart.plotting_area().strip_coord_spec();
+    let (bx, by) = area.get_base_pixel();
     for m in &spec.markers {
         if !finite(m.x, m.y) {
             continue;
         }
         let col = color(&m.color, look.fg);
-        let at = (m.x, m.y);
-        let label = look.small_text().color(&col);
-        let shape: DynElement<'_, DB, (f64, f64)> = match m.shape.as_str() {
-            "ring" => {
-                (EmptyElement::at(at) + Circle::new((0, 0), r, look.line(col, 2.0))).into_dyn()
-            }
-            "cross" => {
-                (EmptyElement::at(at) + Cross::new((0, 0), r, look.line(col, 2.0))).into_dyn()
-            }
-            "none" => EmptyElement::at(at).into_dyn(),
-            _ => (EmptyElement::at(at) + Circle::new((0, 0), r, col.filled())).into_dyn(),
-        };
-        chart.draw_series(std::iter::once(shape)).map_err(msg)?;
+        let (x, y) = chart.backend_coord(&(m.x, m.y));
+        let at = (x - bx, y - by);
+        let stroke = look.line(col, 2.0);
+        match m.shape.as_str() {
+            "ring" => area.draw(&Circle::new(at, r, stroke)),
+            "cross" => area.draw(&Cross::new(at, r, stroke)),
+            "none" => Ok(()),
+            _ => area.draw(&Circle::new(at, r, col.filled())),
+        }
+        .map_err(msg)?;
         if !m.label.is_empty() {
-            chart
-                .draw_series(std::iter::once(
-                    EmptyElement::at(at)
-                        + Text::new(
-                            m.label.clone(),
-                            (r + look.px(3.0), -r - look.font as i32),
-                            label,
-                        ),
-                ))
+            let label = look.small_text().color(&col);
+            let pos = (at.0 + r + look.px(3.0), at.1 - r - look.font as i32);
+            area.draw(&Text::new(m.label.as_str(), pos, label))
                 .map_err(msg)?;
         }
     }
@@ -1124,11 +1074,9 @@ mod tests {
         let fb = RGBAColor(1, 2, 3, 1.0);
         let c = color("#0a7f78", fb);
         assert_eq!((c.0, c.1, c.2), (10, 127, 120));
-        let c = color("#fff", fb);
+        let c = color("#ffffff80", fb);
         assert_eq!((c.0, c.1, c.2), (255, 255, 255));
-        let c = color("rgba(10, 20, 30, 0.5)", fb);
-        assert_eq!((c.0, c.1, c.2), (10, 20, 30));
-        assert!((c.3 - 0.5).abs() < 1e-9);
+        assert!((c.3 - 128.0 / 255.0).abs() < 1e-9);
         let c = color("oklch(0.5 0.1 200)", fb);
         assert_eq!((c.0, c.1, c.2), (1, 2, 3));
     }

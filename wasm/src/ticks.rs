@@ -47,7 +47,7 @@ pub(crate) fn eng_label(value: f64, unit: &str) -> String {
 
 /// Splits `value` into a mantissa in [1, 1000) and its SI prefix.
 fn split_prefix(value: f64) -> (f64, &'static str) {
-    let exp3 = ((value.abs().log10() / 3.0).floor() as i32 * 3).clamp(-15, 12);
+    let exp3 = ((libm::log10(value.abs()) / 3.0).floor() as i32 * 3).clamp(-15, 12);
     let mut mant = value / 10f64.powi(exp3);
     let mut exp = exp3;
     // Rounding to three digits can carry into the next prefix (999.7 → 1000).
@@ -67,7 +67,7 @@ fn round_sig(x: f64, digits: i32) -> f64 {
     if x == 0.0 || !x.is_finite() {
         return x;
     }
-    let mag = x.abs().log10().floor() as i32;
+    let mag = libm::log10(x.abs()).floor() as i32;
     let scale = 10f64.powi(digits - 1 - mag);
     (x * scale).round() / scale
 }
@@ -79,7 +79,7 @@ fn short_number(x: f64) -> String {
     let mag = if r == 0.0 {
         0
     } else {
-        r.abs().log10().floor() as i32
+        libm::log10(r.abs()).floor() as i32
     };
     let decimals = (2 - mag).clamp(0, 6) as usize;
     let mut s = format!("{r:.decimals$}");
@@ -105,8 +105,8 @@ fn short_number(x: f64) -> String {
 pub(crate) fn log_ticks(lo: f64, hi: f64, max_labels: usize) -> (Vec<f64>, Vec<f64>) {
     let eps = 1e-9;
     let inside = |v: f64| v >= lo * (1.0 - eps) && v <= hi * (1.0 + eps);
-    let d0 = lo.log10().floor() as i32;
-    let d1 = hi.log10().ceil() as i32;
+    let d0 = libm::log10(lo).floor() as i32;
+    let d1 = libm::log10(hi).ceil() as i32;
     let decades: Vec<f64> = (d0..=d1)
         .map(|d| 10f64.powi(d))
         .filter(|v| inside(*v))
@@ -153,7 +153,7 @@ pub(crate) fn linear_ticks(lo: f64, hi: f64, target: usize) -> Vec<f64> {
 
 /// The smallest 1-2-5 step not below `raw`.
 pub(crate) fn nice_step(raw: f64) -> f64 {
-    let mag = 10f64.powi(raw.log10().floor() as i32);
+    let mag = 10f64.powi(libm::log10(raw).floor() as i32);
     let f = raw / mag;
     let m = if f <= 1.0 {
         1.0

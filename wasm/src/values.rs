@@ -1,10 +1,9 @@
 //! Values as typed, as understood, and as the nearest standard part.
 
-use serde::Serialize;
 use stagewright::ESeries;
 use wasm_bindgen::prelude::*;
 
-use crate::js::{core_error, to_js};
+use crate::js::{core_error, Builder};
 
 /// Reads `text` as a value of `field` in `unit` (core notation: `4k7`, `10u`,
 /// `100 nF`, `2.2e3`).
@@ -24,16 +23,6 @@ pub fn format_si(value: f64, unit: &str) -> String {
     stagewright::format_si(value, unit)
 }
 
-/// The nearest values of a standard series around a value.
-#[derive(Serialize)]
-struct Lookup {
-    nearest: f64,
-    below: f64,
-    above: f64,
-    error: f64,
-    tolerance: f64,
-}
-
 /// Looks `value` up in the standard series named `series` (`"E24"`).
 ///
 /// JS: `series_lookup(series: string, value: number):
@@ -44,21 +33,15 @@ struct Lookup {
 pub fn series_lookup(series: &str, value: f64) -> Result<JsValue, JsValue> {
     let s = ESeries::parse(series).map_err(|e| core_error(&e.within("series")))?;
     match s.lookup(value) {
-        Some(l) => to_js(&Lookup {
-            nearest: l.nearest,
-            below: l.below,
-            above: l.above,
-            error: l.error,
-            tolerance: s.tolerance(),
-        }),
+        Some(l) => {
+            let o = Builder::new();
+            o.set("nearest", l.nearest);
+            o.set("below", l.below);
+            o.set("above", l.above);
+            o.set("error", l.error);
+            o.set("tolerance", s.tolerance());
+            Ok(o.into())
+        }
         None => Ok(JsValue::NULL),
     }
-}
-
-/// The version of this build (`0.1.0`).
-///
-/// JS: `version(): string`.
-#[wasm_bindgen]
-pub fn version() -> String {
-    env!("CARGO_PKG_VERSION").into()
 }

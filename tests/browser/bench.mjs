@@ -1,0 +1,84 @@
+#!/usr/bin/env node
+// Browser timing: how long the page takes to recompute and redraw after an
+// edit. Opens dist/stagewright.html from file:// in headless Chromium with
+// an example design, types ~100 values into a resistor field (one input
+// event each, as a keystroke gives), and times each edit from the event to
+// the end of the redraw: the analysis in wasm, the results laid out, the
+// diagram updated and the three plots drawn, with every canvas flushed (a
+// pixel read back forces the browser to finish the drawing commands).
+//
+// Prints the median and the 95th percentile. Run by hand:
+//   node tests/browser/bench.mjs [--edits 100] [--design examples/X.json]
+// scripts/test-browser.sh runs it once and prints the figures; it never
+// fails on them (the budget of issue 4 is a median within one 60 Hz frame,
+// 16 ms).
+
+import { readFileSync } from "node:fs";
+import os from "node:os";
+import path from "node:path";
+
+import { htmlUrl, launch, root, waitReady } from "./helpers.mjs";
+
+function arg(name, fallback) {
+  const i = process.argv.indexOf(name);
+  return i > 0 && process.argv[i + 1] ? process.argv[i + 1] : fallback;
+}
+
+const edits = Number(arg("--edits", "100"));
+const designFile = path.resolve(root, arg("--design", "examples/transducer-gain-stage.json"));
+
+/** Times `edits` edits on the page; returns the times in ms. */
+export async function measure(page, count) {
+  return page.evaluate(async (n) => {
+    const el = document.querySelector("stagewright-calc");
+    const input = el.shadowRoot.querySelector("input[name=rc]");
+    const canvases = Array.from(el.shadowRoot.querySelectorAll("canvas"));
+    const frame = () => new Promise((r) => requestAnimationFrame(() => r()));
+    // Values an engineer might try: E24 steps around the design's value.
+    const values = ["3k3", "3k6", "3k9", "4k3", "4k7", "5k1", "4k7", "4k3", "3k9", "3k6"];
+    const times = [];
+    for (let i = 0; i < n + 5; i++) {
+      await frame();
+      input.value = values[i % values.length];
+      const t0 = performance.now();
+      input.dispatchEvent(new Event("input", { bubbles: true }));
+      for (const c of canvases) c.getContext("2d").getImageData(0, 0, 1, 1);
+      const t1 = performance.now();
+      if (i >= 5) times.push(t1 - t0); // the first few warm the engine up
+    }
+    return times;
+  }, count);
+}
+
+export function summarize(times) {
+  const sorted = times.slice().sort((a, b) => a - b);
+  const at = (q) => sorted[Math.min(sorted.length - 1, Math.floor(q * sorted.length))];
+  return { n: sorted.length, median: at(0.5), p95: at(0.95), min: sorted[0], max: sorted[sorted.length - 1] };
+}
+
+async function main() {
+  const design = readFileSync(designFile, "utf8");
+  const b64 = Buffer.from(design).toString("base64url");
+  const browser = await launch({ viewport: { width: 1400, height: 1000 } });
+  try {
+    const page = await browser.page();
+    await page.goto(`${htmlUrl}#design=${b64}`);
+    await waitReady(page);
+    await page.waitForFunction(() => document.querySelector("stagewright-calc").report, null, { timeout: 15000 });
+    const s = summarize(await measure(page, edits));
+    const cpu = os.cpus();
+    console.log(
+      `recompute + redraw after an edit (${s.n} edits, ${path.basename(designFile)}, headless Chromium, ` +
+        `${cpu.length} cores ${cpu[0] ? cpu[0].model.trim() : ""}): ` +
+        `median ${s.median.toFixed(2)} ms, p95 ${s.p95.toFixed(2)} ms ` +
+        `(min ${s.min.toFixed(2)}, max ${s.max.toFixed(2)}; budget: median <= 16 ms)`,
+    );
+    if (browser.errors.length) console.log(`page errors: ${browser.errors.join("; ")}`);
+  } finally {
+    await browser.close();
+  }
+}
+
+if (import.meta.url === `file://${process.argv[1]}`) {
+  await main();
+}

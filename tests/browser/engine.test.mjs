@@ -1,0 +1,151 @@
+// The numbers on the page are the command line's: for every example design,
+// the report of dist/stagewright.html (opened from file://, el.report) equals
+// `stagewright analyze FILE --json` of the native binary, every number
+// within a relative difference of 1e-9; an edit gives the report of the
+// edited file; an invalid entry keeps the last good report.
+
+import assert from "node:assert/strict";
+import { mkdtempSync, readdirSync, readFileSync, rmSync, writeFileSync } from "node:fs";
+import os from "node:os";
+import path from "node:path";
+import { after, before, describe, test } from "node:test";
+
+import { cliReport, htmlUrl, jsonDifferences, launch, networkRequests, root, waitReady, waitReport } from "./helpers.mjs";
+
+const examples = readdirSync(path.join(root, "examples"))
+  .filter((f) => f.endsWith(".json"))
+  .sort()
+  .map((f) => path.join(root, "examples", f));
+
+/** Sets the element's design to `text` and returns its report. */
+function reportFor(page, text) {
+  return page.evaluate((t) => {
+    const el = document.querySelector("stagewright-calc");
+    el.design = t;
+    return el.report;
+  }, text);
+}
+
+describe("the engine in the page", () => {
+  let browser;
+  let page;
+  let tmp;
+
+  before(async () => {
+    tmp = mkdtempSync(path.join(os.tmpdir(), "stagewright-designs-"));
+    browser = await launch();
+    page = await browser.page();
+    await page.goto(htmlUrl);
+    await waitReady(page);
+    await waitReport(page);
+  });
+
+  after(async () => {
+    await browser.close();
+    rmSync(tmp, { recursive: true, force: true });
+  });
+
+  test("there are example designs to compare", () => {
+    assert.ok(examples.length >= 4, `examples: ${examples.join(", ")}`);
+  });
+
+  for (const file of examples) {
+    test(`el.report equals \`stagewright analyze ${path.relative(root, file)} --json\``, async () => {
+      const expected = cliReport(file);
+      const seen = await reportFor(page, readFileSync(file, "utf8"));
+      assert.ok(seen, "the page computed a report");
+      const diffs = jsonDifferences(seen, expected);
+      assert.deepEqual(diffs, [], `differences:\n${diffs.slice(0, 20).join("\n")}`);
+    });
+  }
+
+  test("typing 4k7 into rc gives the report of the file with rc = 4k7", async () => {
+    const file = path.join(root, "examples", "transducer-gain-stage.json");
+    const design = JSON.parse(readFileSync(file, "utf8"));
+    const before = await reportFor(page, JSON.stringify(design));
+    const vcText = () =>
+      page.evaluate(() =>
+        document.querySelector("stagewright-calc").shadowRoot.querySelector('output[data-key="operating_point.vc"]').textContent);
+    const shownBefore = await vcText();
+    const events = page.evaluate(
+      () =>
+        new Promise((resolve) => {
+          document.addEventListener("stagewright-report", (e) => resolve({ bubbles: e.bubbles, composed: e.composed, report: e.detail.report }), { once: true });
+        }),
+    );
+    await page.locator("stagewright-calc .field[data-key='rc'] input").fill("4k7");
+    const event = await events;
+    const after = await page.evaluate(() => document.querySelector("stagewright-calc").report);
+    design.parts.rc = "4k7";
+    const edited = path.join(tmp, "edited.json");
+    writeFileSync(edited, JSON.stringify(design));
+    assert.deepEqual(jsonDifferences(after, cliReport(edited)), [], "the page's report is the edited file's");
+    assert.deepEqual(jsonDifferences(event.report, after), [], "the event carries the same report");
+    assert.equal(event.bubbles && event.composed, true, "the event bubbles out of the shadow root");
+    // A larger collector resistor: more gain, lower collector voltage.
+    assert.ok(Math.abs(after.midband.voltage_gain) > Math.abs(before.midband.voltage_gain) * 1.1);
+    assert.ok(after.operating_point.vc < before.operating_point.vc);
+    assert.notEqual(await vcText(), shownBefore, "the collector voltage on screen follows");
+  });
+
+  test("an invalid entry shows its message in place and the last good results stay", async () => {
+    const good = await page.evaluate(() => document.querySelector("stagewright-calc").report);
+    const shownBefore = await page.evaluate(() =>
+      document.querySelector("stagewright-calc").shadowRoot.querySelector('output[data-key="midband.voltage_gain"]').textContent);
+    await page.locator("stagewright-calc .field[data-key='rc'] input").fill("4k7k");
+    const error = page.locator("stagewright-calc .field[data-key='rc'] .error");
+    await error.waitFor({ state: "visible", timeout: 2000 });
+    assert.match(await error.textContent(), /\brc\b.*4k7k/);
+    const state = await page.evaluate(() => {
+      const el = document.querySelector("stagewright-calc");
+      const root = el.shadowRoot;
+      return {
+        report: el.report,
+        shown: root.querySelector('output[data-key="midband.voltage_gain"]').textContent,
+        stale: root.querySelector("section.results").classList.contains("stale"),
+        notice: root.querySelector(".notice").textContent,
+      };
+    });
+    assert.deepEqual(jsonDifferences(state.report, good), [], "the report is the last good one");
+    assert.equal(state.shown, shownBefore, "the results on screen stay");
+    assert.equal(state.stale, true, "and are marked as standing for the last good values");
+    assert.match(state.notice, /rc/);
+    // A value the parser reads but the engine refuses: the core's message.
+    await page.locator("stagewright-calc .field[data-key='rc'] input").fill("-1k");
+    await page.locator("stagewright-calc .notice", { hasText: "Not computed" }).waitFor({ timeout: 2000 });
+    const notice = await page.locator("stagewright-calc .notice").textContent();
+    assert.match(notice, /parts\.rc must be/);
+    assert.deepEqual(jsonDifferences(await page.evaluate(() => document.querySelector("stagewright-calc").report), good), []);
+    await page.locator("stagewright-calc .field[data-key='rc'] input").fill("4k7");
+    await page.locator("stagewright-calc .notice").waitFor({ state: "hidden", timeout: 2000 });
+  });
+
+  test("broken design files give the command line's message", async () => {
+    // Files the page reads past its own checks (the JSON syntax and the
+    // format version are checked by the page first, with its own words).
+    for (const name of ["typo-key", "misplaced-key", "negative-resistor", "unknown-stage", "bad-value", "impossible-bias"]) {
+      const file = path.join(root, "examples", "broken", `${name}.json`);
+      const expected = readFileSync(file.replace(/\.json$/, ".expected"), "utf8").trim();
+      const notice = await page.evaluate((t) => {
+        const el = document.querySelector("stagewright-calc");
+        el.design = t;
+        return el.shadowRoot.querySelector(".notice").textContent;
+      }, readFileSync(file, "utf8"));
+      assert.ok(notice.includes(expected), `${name}: page says "${notice}", the command line "${expected}"`);
+    }
+  });
+
+  test("the engine's presets and their data reach the form", async () => {
+    const info = await page.evaluate(() => {
+      const root = document.querySelector("stagewright-calc").shadowRoot;
+      return {
+        options: Array.from(root.querySelectorAll("select[name=preset] option")).map((o) => o.value).filter(Boolean),
+        placeholder: root.querySelector("input[name=hfe]").placeholder,
+      };
+    });
+    assert.deepEqual(info.options, ["general-purpose-npn", "general-purpose-pnp", "low-noise-npn", "medium-power-npn", "rf-npn"]);
+    assert.match(info.placeholder, /^\d+$/, "an empty device field shows the class's value");
+    assert.deepEqual(networkRequests(browser.requests), []);
+    assert.deepEqual(browser.errors, []);
+  });
+});
