@@ -128,8 +128,8 @@ pub use requirements::Requirements;
 pub use response::{log_frequencies, Bandwidth, Response, SEARCH_FROM, SEARCH_TO};
 #[cfg(feature = "serde")]
 pub use spec_file::{
-    BiasDocument, BiasPointDocument, PinnedPartsDocument, SeriesDocument, SpecDocument, SpecFile,
-    SPEC_FORMAT, SPEC_FORMATS,
+    BiasDocument, BiasPointDocument, DesignResult, PartEntry, PinnedPartsDocument, SeriesDocument,
+    SpecDocument, SpecFile, DESIGN_RESULT_FORMAT, SPEC_FORMAT, SPEC_FORMATS,
 };
 pub use stage::{Parts, Stage, StageKind, DEFAULT_RESISTOR_RATING, MAX_SUPPLY};
 pub use swing::Swing;
@@ -138,9 +138,9 @@ pub use synthesis::{
     DEFAULT_EMITTER_FRACTION, DEFAULT_F_LOW, DEFAULT_SATURATION_RESERVE, DEFAULT_STIFFNESS,
 };
 pub use tolerance::{
-    sensitivity, tolerance_analysis, worst_case, Corner, Distribution, Extreme, Histogram, Level,
-    MonteCarlo, MonteCarloSummary, Parameter, Quantity, RequirementYield, Sensitivity, Setting,
-    ToleranceReport, Tolerances, WorstCase, DEFAULT_TRIALS,
+    sensitivity, tolerance_analysis, worst_case, worst_checks, Corner, Distribution, Extreme,
+    Histogram, Level, MonteCarlo, MonteCarloSummary, Parameter, Quantity, RequirementYield,
+    Sensitivity, Setting, ToleranceReport, Tolerances, WorstCase, WorstCheck, DEFAULT_TRIALS,
 };
 pub use transistor::{
     Currents, Device, Polarity, TransistorData, CJC_BUILT_IN, CJC_GRADING, DEFAULT_BETA_REVERSE,

@@ -89,7 +89,7 @@ mod tests {
     #[test]
     fn the_stream_of_a_seed_is_fixed() {
         // The first draws of seed 1, recomputed outside this code by a
-        // separate transcription of PCG-64 XSL-RR (O'Neill 2014: 128-bit LCG
+        // separately written copy of PCG-64 XSL-RR (O'Neill 2014: 128-bit LCG
         // with multiplier 0x2360ED051FC65DA44385DF649FCCF645, output
         // rotr(hi ^ lo, state >> 122)) seeded by rand_core's documented
         // `seed_from_u64` (PCG-32 fills the 32-byte seed; the state is bytes

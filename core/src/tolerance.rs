@@ -124,7 +124,7 @@ use crate::hybrid_pi::SmallSignal;
 use crate::nodal::db20;
 use crate::operating_point::{OperatingPoint, Region};
 use crate::random::Stream;
-use crate::ratings::Dissipation;
+use crate::ratings::{Check, Dissipation};
 use crate::requirements::Requirements;
 use crate::response::{Response, SEARCH_FROM, SEARCH_TO};
 use crate::stage::{Stage, MAX_SUPPLY};
@@ -1758,6 +1758,106 @@ fn distribution(q: Quantity, v: &mut [f64]) -> Option<Distribution> {
     })
 }
 
+/// One requirement judged at the vertex of the tolerance box where it is
+/// worst (see [`worst_checks`]).
+#[derive(Debug, Clone, PartialEq)]
+pub struct WorstCheck {
+    /// The check, with `id` the requirement's key (`min_swing`) and the
+    /// worst value as its value.
+    pub check: Check,
+    /// The vertex of the worst value (`None` when the stage has no such
+    /// corner frequency, which counts as in the nominal check).
+    pub corner: Option<Corner>,
+}
+
+/// Each requirement that is set, judged at the vertex where it is worst:
+/// the lowest value over the box for a lower bound (`min_…`), the highest
+/// for an upper bound (`max_…`). The meaning is that of the nominal check:
+/// a missing lower corner counts as 0 Hz, a missing upper corner as the top
+/// of the search range ([`SEARCH_TO`]); the gain is compared in dB. The
+/// command line's `check --worst-case` and the page both judge with this.
+pub fn worst_checks(requirements: &Requirements, worst: &WorstCase) -> Vec<WorstCheck> {
+    use Quantity::*;
+    let r = requirements;
+    // (requirement, limit, result, true for a lower bound)
+    let rows = [
+        (
+            "min_voltage_gain_db",
+            r.min_voltage_gain_db,
+            VoltageGain,
+            true,
+        ),
+        (
+            "max_voltage_gain_db",
+            r.max_voltage_gain_db,
+            VoltageGain,
+            false,
+        ),
+        (
+            "min_input_impedance",
+            r.min_input_impedance,
+            InputImpedance,
+            true,
+        ),
+        (
+            "max_output_impedance",
+            r.max_output_impedance,
+            OutputImpedance,
+            false,
+        ),
+        ("min_swing", r.min_swing, Swing, true),
+        ("max_f_low", r.max_f_low, FLow, false),
+        ("min_f_high", r.min_f_high, FHigh, true),
+        (
+            "max_supply_current",
+            r.max_supply_current,
+            SupplyCurrent,
+            false,
+        ),
+        (
+            "max_junction_temperature",
+            r.max_junction_temperature,
+            JunctionTemperature,
+            false,
+        ),
+    ];
+    let mut out = Vec::new();
+    for (id, limit, q, at_least) in rows {
+        let Some(limit) = limit else { continue };
+        let (value, corner) = match worst.get(q) {
+            Some(e) if at_least => (e.min, Some(e.min_corner.clone())),
+            Some(e) => (e.max, Some(e.max_corner.clone())),
+            // A stage without this corner frequency.
+            None if q == FLow => (0.0, None),
+            None if q == FHigh => (SEARCH_TO, None),
+            None => (f64::NAN, None),
+        };
+        let (value, unit) = match q {
+            VoltageGain => (db20(value), "dB"),
+            _ => (value, q.unit()),
+        };
+        let what = match q {
+            VoltageGain => "worst-case voltage gain",
+            InputImpedance => "worst-case input impedance",
+            OutputImpedance => "worst-case output impedance",
+            Swing => "worst-case symmetric output swing (peak)",
+            FLow => "worst-case lower corner",
+            FHigh => "worst-case upper corner",
+            SupplyCurrent => "worst-case supply current",
+            JunctionTemperature => "worst-case junction temperature",
+            Ic => "worst-case ic",
+            Vce => "worst-case vce",
+        };
+        let check = if at_least {
+            Check::at_least(id, what, value, limit, unit)
+        } else {
+            Check::at_most(id, what, value, limit, unit)
+        };
+        out.push(WorstCheck { check, corner });
+    }
+    out
+}
+
 /// Worst case, sensitivity and Monte Carlo together.
 #[derive(Debug, Clone, PartialEq)]
 #[cfg_attr(feature = "serde", derive(serde::Serialize))]
@@ -1880,6 +1980,39 @@ mod tests {
                 }
             }
         }
+    }
+
+    #[test]
+    fn worst_checks_take_the_extreme_on_the_requirements_side() {
+        // A lower bound is judged at the box's minimum, an upper bound at
+        // its maximum, each with the vertex that gives it; the gain in dB;
+        // unset requirements are left out.
+        let stage = ce_stage();
+        let wc = worst_case(&stage, &Tolerances::default()).unwrap();
+        let swing = wc.get(Quantity::Swing).unwrap();
+        let current = wc.get(Quantity::SupplyCurrent).unwrap();
+        let gain = wc.get(Quantity::VoltageGain).unwrap();
+        let req = Requirements {
+            min_swing: Some(swing.min * 1.001),
+            max_supply_current: Some(current.max * 1.001),
+            min_voltage_gain_db: Some(db20(gain.min) - 0.1),
+            ..Requirements::default()
+        };
+        let checks = worst_checks(&req, &wc);
+        let ids: Vec<&str> = checks.iter().map(|c| c.check.id.as_str()).collect();
+        assert_eq!(
+            ids,
+            ["min_voltage_gain_db", "min_swing", "max_supply_current"]
+        );
+        assert!(checks[0].check.pass);
+        assert_eq!(checks[0].check.value, db20(gain.min));
+        assert_eq!(checks[0].check.unit, "dB");
+        assert!(!checks[1].check.pass, "the worst swing is below the limit");
+        assert_eq!(checks[1].check.value, swing.min);
+        assert_eq!(checks[1].corner.as_ref(), Some(&swing.min_corner));
+        assert!(checks[2].check.pass);
+        assert_eq!(checks[2].check.value, current.max);
+        assert_eq!(checks[2].corner.as_ref(), Some(&current.max_corner));
     }
 
     #[test]

@@ -123,6 +123,20 @@ const COVERAGE: &[(&str, Covered)] = &[
         ),
     ),
     (
+        "worst_checks",
+        Unit(
+            "tolerance",
+            "worst_checks_take_the_extreme_on_the_requirements_side",
+        ),
+    ),
+    (
+        "WorstCheck",
+        Unit(
+            "tolerance",
+            "worst_checks_take_the_extreme_on_the_requirements_side",
+        ),
+    ),
+    (
         "worst_case",
         Unit("tolerance", "worst_case_corners_point_the_right_way"),
     ),
@@ -476,6 +490,9 @@ const COVERAGE: &[(&str, Covered)] = &[
     ("BiasDocument", Format(SPEC_FILE)),
     ("BiasPointDocument", Format(SPEC_FILE)),
     ("SPEC_FORMAT", Format(SPEC_FILE)),
+    ("DesignResult", Format(SPEC_FILE)),
+    ("PartEntry", Format(SPEC_FILE)),
+    ("DESIGN_RESULT_FORMAT", Format(SPEC_FILE)),
     ("SPEC_FORMATS", Format(SPEC_FILE)),
 ];
 

@@ -36,16 +36,21 @@ const DEFAULT_PER_DECADE: f64 = 20.0;
 /// Only a JSON syntax error reads differently (the browser's wording).
 /// Leaving serde_json's parser out of the module saves about 25 KB.
 fn solve(design_json: &str) -> Result<(Design, Analysis), JsValue> {
-    let value = read_json(design_json)?;
-    let design = DesignDocument::from_value(&value)
-        .and_then(Design::try_from)
-        .map_err(|e| core_error(&e))?;
+    let design = read_design(design_json)?;
     let analysis = design.analyze().map_err(|e| core_error(&e))?;
     Ok((design, analysis))
 }
 
+/// Reads and validates a design file (no analysis).
+pub(crate) fn read_design(design_json: &str) -> Result<Design, JsValue> {
+    let value = read_json(design_json)?;
+    DesignDocument::from_value(&value)
+        .and_then(Design::try_from)
+        .map_err(|e| core_error(&e))
+}
+
 /// JSON text as a `serde_json::Value`, parsed by the browser.
-fn read_json(text: &str) -> Result<Value, JsValue> {
+pub(crate) fn read_json(text: &str) -> Result<Value, JsValue> {
     let parsed = js_sys::JSON::parse(text).map_err(|e| {
         let why = e
             .dyn_ref::<js_sys::Error>()
@@ -97,9 +102,16 @@ fn json_value(v: &JsValue) -> Value {
 /// `stagewright analyze FILE --json` (the same serializer, without the
 /// indentation), parsed by the browser.
 fn report(design: &Design, analysis: &Analysis) -> Result<JsValue, JsValue> {
-    let text = serde_json::to_string(&Report::new(design, analysis))
-        .map_err(|_| field_error("", "the report could not be written"))?;
-    js_sys::JSON::parse(&text).map_err(|_| field_error("", "the report could not be read"))
+    to_js(&Report::new(design, analysis))
+}
+
+/// A serializable core value as a plain object: its JSON text (the
+/// serializer of the command line's `--json`, without indentation), parsed
+/// by the browser. Numbers keep every bit (shortest round-trip text).
+pub(crate) fn to_js<T: serde::Serialize>(value: &T) -> Result<JsValue, JsValue> {
+    let text = serde_json::to_string(value)
+        .map_err(|_| field_error("", "the result could not be written"))?;
+    js_sys::JSON::parse(&text).map_err(|_| field_error("", "the result could not be read"))
 }
 
 /// The plot's frequency window, whole decades: from at least half a decade

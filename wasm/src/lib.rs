@@ -22,11 +22,19 @@
 mod analysis;
 mod js;
 mod plot;
+#[cfg(feature = "wip")]
+mod spec;
 mod ticks;
+#[cfg(feature = "wip")]
+mod tolerance;
 mod values;
 
 pub use analysis::{analyze, compute, preset_data, presets};
 pub use plot::{plot_frequency, plot_xy};
+#[cfg(feature = "wip")]
+pub use spec::design_from_spec;
+#[cfg(feature = "wip")]
+pub use tolerance::Tolerance;
 pub use values::{format_si, parse_value, series_lookup};
 
 /// The allocator: a small free-list allocator in place of the standard

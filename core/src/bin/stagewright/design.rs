@@ -1,16 +1,13 @@
 //! `stagewright design SPEC.json [--json] [-o design.json]`: a
 //! specification (`stagewright-spec/1`) to a design of standard parts.
 //!
-//! The core does the work ([`SpecFile::from_json`], [`synthesize`],
-//! [`SpecFile::design`], [`Report::new`]); this module prints it.
+//! The core does the work ([`SpecFile::from_json`] and
+//! [`SpecFile::design_result`], which the page calls too); this module
+//! prints it.
 
-use serde_json::{json, Value};
-use stagewright::{format_si, synthesize, Design, PartChoice, Report, SpecFile, Synthesis};
+use stagewright::{format_si, Report, SpecFile, Synthesis};
 
 use super::{out, read_text, report_problem, shown_name, Problem, FAIL, INVALID, PASS};
-
-/// The format of `design --json`.
-const DESIGN_RESULT_FORMAT: &str = "stagewright-design/1";
 
 /// Runs the command: 0 when the standard-value design passes every check,
 /// 1 when the specification cannot be met (or a rating of the design
@@ -33,8 +30,8 @@ pub(crate) fn run(file: &str, json: bool, output: Option<&str>) -> u8 {
         Ok(s) => s,
         Err(p) => return report_problem(file, &p),
     };
-    let synthesis = match synthesize(&spec.spec) {
-        Ok(s) => s,
+    let (result, synthesis) = match spec.design_result() {
+        Ok(r) => r,
         Err(e) => {
             // The file is valid (the reader ran every check of the
             // specification): what is left is a design that cannot be met.
@@ -43,8 +40,7 @@ pub(crate) fn run(file: &str, json: bool, output: Option<&str>) -> u8 {
         }
     };
     let design = spec.design(&synthesis);
-    let report = Report::new(&design, &synthesis.analysis);
-    let code = if report.passed() { PASS } else { FAIL };
+    let code = if result.pass { PASS } else { FAIL };
     match output {
         Some("-") => {
             out(&design.to_json());
@@ -61,39 +57,12 @@ pub(crate) fn run(file: &str, json: bool, output: Option<&str>) -> u8 {
     if json {
         out(&format!(
             "{}\n",
-            serde_json::to_string_pretty(&document(&synthesis, &design, &report))
-                .unwrap_or_default()
+            serde_json::to_string_pretty(&result).unwrap_or_default()
         ));
     } else {
-        out(&text(file, &spec, &synthesis, &report, output));
+        out(&text(file, &spec, &synthesis, &result.report, output));
     }
     code
-}
-
-/// One part as JSON.
-fn part_json(p: &PartChoice) -> Value {
-    json!({
-        "part": p.part,
-        "ideal": p.ideal,
-        "chosen": p.chosen,
-        "pinned": p.pinned,
-        "series": p.series.map(|s| s.name()),
-        "change": p.change,
-    })
-}
-
-/// The `--json` document.
-fn document(s: &Synthesis, design: &Design, report: &Report) -> Value {
-    json!({
-        "format": DESIGN_RESULT_FORMAT,
-        "pass": report.passed(),
-        "target": s.target,
-        "parts": s.parts.iter().map(part_json).collect::<Vec<_>>(),
-        "differences": s.differences,
-        "notes": s.notes,
-        "design": design.to_document(),
-        "report": report,
-    })
 }
 
 /// `label` padded to `width` characters (not bytes: labels hold `Ω`, `|`).

@@ -4,15 +4,16 @@
 //! The core computes everything ([`worst_case`], [`sensitivity`],
 //! [`MonteCarlo`]); this module chooses the tolerances (the design file's
 //! `tolerances` block, else [`Tolerances::default`], each value replaced by
-//! its command-line option when given), judges the requirements at the
-//! worst vertex and the yield against `--min-yield`, and prints.
+//! its command-line option when given), judges the yield against
+//! `--min-yield` (the requirements at their worst vertex are judged by the
+//! core's [`worst_checks`], as on the page), and prints.
 
 use clap::Args;
 use serde_json::{json, Map, Value};
 use stagewright::{
-    db20, format_si, parse_value_field, sensitivity, worst_case, Check, Corner, Design, Error,
-    ErrorKind, Level, MonteCarlo, MonteCarloSummary, Quantity, Requirements, Sensitivity,
-    Temperature, Tolerances, WorstCase, SEARCH_TO,
+    db20, format_si, parse_value_field, sensitivity, worst_case, worst_checks, Corner, Design,
+    Error, ErrorKind, Level, MonteCarlo, MonteCarloSummary, Quantity, Sensitivity, Temperature,
+    Tolerances, WorstCase, WorstCheck,
 };
 
 /// Sensitivity entries shown in the readable output (all are in `--json`).
@@ -196,14 +197,6 @@ impl ToleranceArgs {
     }
 }
 
-/// One requirement judged at its worst vertex.
-pub(crate) struct WorstCheck {
-    check: Check,
-    /// The vertex of the worst value (`None` when the stage has no such
-    /// corner frequency, which counts as in the nominal check).
-    corner: Option<Corner>,
-}
-
 /// The tolerance analysis of one file.
 pub(crate) struct Outcome {
     tolerances: Tolerances,
@@ -264,90 +257,6 @@ fn tolerances(design: &Design, o: &Overrides) -> Result<Tolerances, Error> {
         }
     })?;
     Ok(t)
-}
-
-/// Each requirement that is set, at the vertex where it is worst. The
-/// meaning is that of the nominal check: a missing lower corner counts as
-/// 0 Hz, a missing upper corner as the top of the search range.
-fn worst_checks(r: &Requirements, w: &WorstCase) -> Vec<WorstCheck> {
-    use Quantity::*;
-    // (requirement, limit, result, true for a lower bound)
-    let rows = [
-        (
-            "min_voltage_gain_db",
-            r.min_voltage_gain_db,
-            VoltageGain,
-            true,
-        ),
-        (
-            "max_voltage_gain_db",
-            r.max_voltage_gain_db,
-            VoltageGain,
-            false,
-        ),
-        (
-            "min_input_impedance",
-            r.min_input_impedance,
-            InputImpedance,
-            true,
-        ),
-        (
-            "max_output_impedance",
-            r.max_output_impedance,
-            OutputImpedance,
-            false,
-        ),
-        ("min_swing", r.min_swing, Swing, true),
-        ("max_f_low", r.max_f_low, FLow, false),
-        ("min_f_high", r.min_f_high, FHigh, true),
-        (
-            "max_supply_current",
-            r.max_supply_current,
-            SupplyCurrent,
-            false,
-        ),
-        (
-            "max_junction_temperature",
-            r.max_junction_temperature,
-            JunctionTemperature,
-            false,
-        ),
-    ];
-    let mut out = Vec::new();
-    for (id, limit, q, at_least) in rows {
-        let Some(limit) = limit else { continue };
-        let (value, corner) = match w.get(q) {
-            Some(e) if at_least => (e.min, Some(e.min_corner.clone())),
-            Some(e) => (e.max, Some(e.max_corner.clone())),
-            // A stage without this corner frequency.
-            None if q == FLow => (0.0, None),
-            None if q == FHigh => (SEARCH_TO, None),
-            None => (f64::NAN, None),
-        };
-        let (value, unit) = match q {
-            VoltageGain => (db20(value), "dB"),
-            _ => (value, q.unit()),
-        };
-        let what = match q {
-            VoltageGain => "voltage gain",
-            InputImpedance => "input impedance",
-            OutputImpedance => "output impedance",
-            Swing => "symmetric output swing (peak)",
-            FLow => "lower corner",
-            FHigh => "upper corner",
-            SupplyCurrent => "supply current",
-            JunctionTemperature => "junction temperature",
-            Ic | Vce => q.name(),
-        };
-        let what = format!("worst-case {what}");
-        let check = if at_least {
-            Check::at_least(id, &what, value, limit, unit)
-        } else {
-            Check::at_most(id, &what, value, limit, unit)
-        };
-        out.push(WorstCheck { check, corner });
-    }
-    out
 }
 
 /// Runs the plan on one valid design.
