@@ -454,16 +454,26 @@ fn lu_solve(
             b2.swap(p, k);
         }
         let inv = Complex64::new(1.0, 0.0) / a[k][k];
+        // The network is sparse (a node touches two to four others): update
+        // only the columns where the pivot row is non-zero.
+        let mut cols = [0usize; M];
+        let mut nc = 0;
+        for (j, v) in a[k].iter().enumerate().take(n).skip(k + 1) {
+            if v.re != 0.0 || v.im != 0.0 {
+                cols[nc] = j;
+                nc += 1;
+            }
+        }
+        let pivot_row = a[k];
+        let (t1, t2) = (b1[k], b2[k]);
         for i in (k + 1)..n {
             let f = a[i][k] * inv;
             if f.re == 0.0 && f.im == 0.0 {
                 continue;
             }
-            let pivot_row = a[k];
-            for (aij, &t) in a[i][(k + 1)..n].iter_mut().zip(&pivot_row[(k + 1)..n]) {
-                *aij -= f * t;
+            for &j in &cols[..nc] {
+                a[i][j] -= f * pivot_row[j];
             }
-            let (t1, t2) = (b1[k], b2[k]);
             b1[i] -= f * t1;
             b2[i] -= f * t2;
         }
