@@ -5,8 +5,8 @@
 #
 # Tools: rustup + cargo + node (>= 18) + npm. Steps: add the wasm target if
 # missing; install the wasm-bindgen CLI of exactly the version in Cargo.lock
-# if the one on PATH differs; install zopfli (Debian package) and terser
-# (npm, www/package-lock.json) if missing; `cargo build` the wasm crate with
+# if the one on PATH differs; install terser, esbuild and lzma1 (npm,
+# www/package-lock.json) if missing; `cargo build` the wasm crate with
 # a size-tuned release profile; `wasm-bindgen --target no-modules`; then
 # `node www/build.mjs` minifies and inlines everything, prints the size
 # report (raw and gzip of the wasm and of both files) and fails when
@@ -22,6 +22,19 @@ ROOT="$PWD"
 TARGET=wasm32-unknown-unknown
 TARGET_DIR="$ROOT/target/wasm"
 BINDGEN_OUT="$TARGET_DIR/bindgen"
+OUT_DIR="$ROOT/dist"
+# STAGEWRIGHT_EXTRAS=1: the engine with the "from requirements" and
+# tolerance exports and the page with their views (www/views.js), written
+# to target/wasm/dist-extras/ instead of dist/: over the size budget, so a
+# development build, not a deliverable.
+FEATURES=()
+EXTRAS_FLAG=()
+if [ "${STAGEWRIGHT_EXTRAS:-}" = 1 ]; then
+  FEATURES=(--features extras)
+  EXTRAS_FLAG=(--extras)
+  BINDGEN_OUT="$TARGET_DIR/bindgen-extras"
+  OUT_DIR="$TARGET_DIR/dist-extras"
+fi
 
 say() { printf '\n==> %s\n' "$*"; }
 
@@ -66,18 +79,11 @@ if [ "$HAVE_WB" != "$WB_VERSION" ]; then
   cargo install wasm-bindgen-cli --version "$WB_VERSION"
 fi
 
-# 3. The packers: zopfli compresses the inlined wasm (about 8 % smaller
-# than zlib), terser minifies the script. Both are needed to keep the page
-# within its size budget.
-if ! command -v zopfli >/dev/null 2>&1; then
-  say "installing zopfli (Debian package)"
-  SUDO=""
-  if [ "$(id -u)" -ne 0 ]; then SUDO="sudo"; fi
-  $SUDO env DEBIAN_FRONTEND=noninteractive apt-get install -y zopfli \
-    || { $SUDO apt-get update && $SUDO env DEBIAN_FRONTEND=noninteractive apt-get install -y zopfli; }
-fi
-if [ ! -d www/node_modules/terser ]; then
-  say "installing terser (www/package-lock.json)"
+# 3. The packers (npm, www/package-lock.json): terser minifies the script,
+# lzma1 compresses the inlined wasm (its decoder, bundled by esbuild, goes
+# into the page). All three are needed to keep the page within its budget.
+if [ ! -d www/node_modules/terser ] || [ ! -d www/node_modules/esbuild ] || [ ! -d www/node_modules/lzma1 ]; then
+  say "installing terser, esbuild and lzma1 (www/package-lock.json)"
   (cd www && npm ci --no-audit --no-fund)
 fi
 
@@ -90,7 +96,7 @@ CARGO_PROFILE_RELEASE_CODEGEN_UNITS=1 \
 CARGO_PROFILE_RELEASE_PANIC=abort \
 CARGO_PROFILE_RELEASE_DEBUG=false \
 CARGO_PROFILE_RELEASE_INCREMENTAL=false \
-  cargo build -p stagewright-wasm --release --target "$TARGET" --target-dir "$TARGET_DIR"
+  cargo build -p stagewright-wasm "${FEATURES[@]}" --release --target "$TARGET" --target-dir "$TARGET_DIR"
 
 # 5. JavaScript glue for a classic script (no ES modules: file:// pages
 # cannot load modules or fetch the wasm).
@@ -105,5 +111,5 @@ wasm-bindgen "$TARGET_DIR/$TARGET/release/stagewright_wasm.wasm" \
   --remove-producers-section
 
 # 6. One page and one script, and the size report.
-say "assembling dist/"
-node www/build.mjs --bindgen "$BINDGEN_OUT" --out "$ROOT/dist"
+say "assembling ${OUT_DIR#"$ROOT"/}/"
+node www/build.mjs --bindgen "$BINDGEN_OUT" --out "$OUT_DIR" "${EXTRAS_FLAG[@]}"

@@ -4,7 +4,8 @@
  * one function scope together with:
  *   STAGEWRIGHT_VERSION            the version string
  *   STAGEWRIGHT_CSS                www/styles.css as text (shadow root styles)
- *   STAGEWRIGHT_WASM_GZIP_BASE64   the wasm module, gzip-compressed, base64
+ *   STAGEWRIGHT_WASM_LZMA_BASE64   the wasm module, LZMA-compressed, base64
+ *   STAGEWRIGHT_UNLZMA             the LZMA decoder (npm lzma1, bundled)
  *   STAGEWRIGHT_SCRIPT_URL         where the script was loaded from, if known
  *   wasm_bindgen                   the wasm-bindgen "no-modules" glue
  * so nothing here becomes a global; the page sees only the custom element.
@@ -330,18 +331,11 @@ function base64ToBytes(b64) {
   return out;
 }
 
-async function gunzip(bytes) {
-  if (typeof DecompressionStream !== "function") {
-    throw new Error("this browser cannot unpack the engine (no DecompressionStream); please use a current browser");
-  }
-  const stream = new Blob([bytes]).stream().pipeThrough(new DecompressionStream("gzip"));
-  return new Uint8Array(await new Response(stream).arrayBuffer());
-}
 
 function loadEngine() {
   if (!enginePromise) {
     enginePromise = (async () => {
-      const bytes = await gunzip(base64ToBytes(STAGEWRIGHT_WASM_GZIP_BASE64));
+      const bytes = STAGEWRIGHT_UNLZMA.unlzma(base64ToBytes(STAGEWRIGHT_WASM_LZMA_BASE64));
       await wasm_bindgen({ module_or_path: bytes });
       return wasm_bindgen;
     })();
@@ -1064,6 +1058,8 @@ class StagewrightCalc extends HTMLElement {
     this._main = h("div", { class: "layout" },
       h("div", { class: "col-form" }, this._formBox),
       h("div", { class: "col-out" }, diagramCard, this._results, this._plots));
+    // The views of a build with the engine's extras (www/views.js).
+    if (this._buildViews) this._buildViews(this._main.lastChild);
     this._frame = h("div", { class: "frame", part: "frame" }, header, this._banner, this._status, this._main, footer);
     root.append(this._frame);
 
@@ -1628,6 +1624,7 @@ class StagewrightCalc extends HTMLElement {
       }
       sel.value = current;
     }
+    if (this._fillSpecPresets && this._specInputs) this._fillSpecPresets(api);
     if (this._design) {
       this._refreshAllFields();
       this._refreshHeading();

@@ -1312,9 +1312,19 @@ impl Model {
                 }
             }
         }
-        out.sort_by(|a, b| {
-            libm::fabs(b.percent_per_percent).total_cmp(&libm::fabs(a.percent_per_percent))
-        });
+        // Largest magnitude first, ties in table order: a stable insertion
+        // sort (at most a few dozen entries; the standard library's sorts
+        // would add kilobytes to the page's wasm).
+        for i in 1..out.len() {
+            let mut j = i;
+            while j > 0
+                && libm::fabs(out[j].percent_per_percent)
+                    > libm::fabs(out[j - 1].percent_per_percent)
+            {
+                out.swap(j, j - 1);
+                j -= 1;
+            }
+        }
         Ok((out, pred))
     }
 }
@@ -1702,21 +1712,49 @@ impl MonteCarlo {
     }
 }
 
-/// The percentile `p` (0 to 1) of `v` by linear interpolation between order
-/// statistics; reorders `v`.
-fn percentile(v: &mut [f64], p: f64) -> f64 {
-    let n = v.len();
+/// The percentile `p` (0 to 1) of the ascending `sorted` by linear
+/// interpolation between order statistics.
+fn percentile(sorted: &[f64], p: f64) -> f64 {
+    let n = sorted.len();
     // formula: h = (n − 1)·p, value = x₍⌊h⌋₎ + (h − ⌊h⌋)·(x₍⌊h⌋+1₎ − x₍⌊h⌋₎)
     let h = (n - 1) as f64 * p;
     let k = libm::floor(h) as usize;
-    let (_, lo, rest) = v.select_nth_unstable_by(k, f64::total_cmp);
-    let lo = *lo;
+    let lo = sorted[k];
     let frac = h - k as f64;
-    if frac == 0.0 || rest.is_empty() {
+    if frac == 0.0 || k + 1 >= n {
         return lo;
     }
-    let hi = rest.iter().copied().fold(f64::INFINITY, f64::min);
-    lo + frac * (hi - lo)
+    lo + frac * (sorted[k + 1] - lo)
+}
+
+/// Sorts `v` ascending (by `f64::total_cmp`) in place: a heapsort, a few
+/// hundred bytes of code where the standard library's sorts and selection
+/// would add kilobytes to the page's wasm, and O(n log n) at any input.
+fn sort_ascending(v: &mut [f64]) {
+    fn sift_down(v: &mut [f64], mut root: usize, end: usize) {
+        loop {
+            let mut child = 2 * root + 1;
+            if child >= end {
+                return;
+            }
+            if child + 1 < end && v[child].total_cmp(&v[child + 1]).is_lt() {
+                child += 1;
+            }
+            if v[root].total_cmp(&v[child]).is_ge() {
+                return;
+            }
+            v.swap(root, child);
+            root = child;
+        }
+    }
+    let n = v.len();
+    for start in (0..n / 2).rev() {
+        sift_down(v, start, n);
+    }
+    for end in (1..n).rev() {
+        v.swap(0, end);
+        sift_down(v, 0, end);
+    }
 }
 
 fn distribution(q: Quantity, v: &mut [f64]) -> Option<Distribution> {
@@ -1742,6 +1780,7 @@ fn distribution(q: Quantity, v: &mut [f64]) -> Option<Distribution> {
         };
         counts[k.min(HISTOGRAM_BINS - 1)] += 1;
     }
+    sort_ascending(v);
     Some(Distribution {
         quantity: q,
         p1: percentile(v, 0.01),
@@ -2251,14 +2290,19 @@ mod tests {
     #[test]
     fn percentiles_interpolate_between_order_statistics() {
         // 1, 2, …, 101: the type-7 percentile at p is 1 + 100·p exactly
-        // (Hyndman & Fan's definition 7, from memory), whatever the order.
+        // (Hyndman & Fan's definition 7, from memory), whatever the order
+        // before the sort.
         let mut v: Vec<f64> = (1..=101).rev().map(f64::from).collect();
-        assert_eq!(percentile(&mut v, 0.01), 2.0);
-        assert_eq!(percentile(&mut v, 0.5), 51.0);
-        assert_eq!(percentile(&mut v, 0.99), 100.0);
+        sort_ascending(&mut v);
+        assert_eq!(v, (1..=101).map(f64::from).collect::<Vec<_>>());
+        assert_eq!(percentile(&v, 0.01), 2.0);
+        assert_eq!(percentile(&v, 0.5), 51.0);
+        assert_eq!(percentile(&v, 0.99), 100.0);
         // Between two values: 0, 10 at p = 0.25 gives 2.5.
         let mut w = [10.0, 0.0];
-        assert!(libm::fabs(percentile(&mut w, 0.25) - 2.5) < 1e-12);
+        sort_ascending(&mut w);
+        assert!(libm::fabs(percentile(&w, 0.25) - 2.5) < 1e-12);
+        v.reverse();
         let d = distribution(Quantity::Ic, &mut v).unwrap();
         assert_eq!(d.histogram.counts.iter().sum::<u32>(), 101);
         assert_eq!((d.min, d.max), (1.0, 101.0));
@@ -2284,7 +2328,8 @@ mod tests {
                 m.draw(&u).0[k]
             })
             .collect();
-        let median = percentile(&mut draws, 0.5);
+        sort_ascending(&mut draws);
+        let median = percentile(&draws, 0.5);
         assert!(rel(median, libm::sqrt(110.0 * 400.0)) < 0.04, "{median}");
     }
 

@@ -9,7 +9,10 @@
 //!   page can show each message next to the field it names;
 //! * runs the core's analysis of a design file and hands the page its
 //!   report, frequency sweep and load lines ([`compute`], [`analyze`],
-//!   [`presets`], [`preset_data`]);
+//!   [`presets`], [`preset_data`]); with the feature `extras`, also
+//!   designs a specification (`design_from_spec`) and runs the tolerance
+//!   analysis in chunks (`Tolerance`), which the default page leaves out
+//!   for its size budget;
 //! * draws plots on canvases ([`plot_frequency`], [`plot_xy`]).
 //!
 //! It holds no circuit equation: every number the page shows comes from the
@@ -22,18 +25,18 @@
 mod analysis;
 mod js;
 mod plot;
-#[cfg(feature = "wip")]
+#[cfg(feature = "extras")]
 mod spec;
 mod ticks;
-#[cfg(feature = "wip")]
+#[cfg(feature = "extras")]
 mod tolerance;
 mod values;
 
 pub use analysis::{analyze, compute, preset_data, presets};
 pub use plot::{plot_frequency, plot_xy};
-#[cfg(feature = "wip")]
+#[cfg(feature = "extras")]
 pub use spec::design_from_spec;
-#[cfg(feature = "wip")]
+#[cfg(feature = "extras")]
 pub use tolerance::Tolerance;
 pub use values::{format_si, parse_value, series_lookup};
 

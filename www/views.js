@@ -1,0 +1,387 @@
+/* Stagewright: the "from requirements" and tolerance views.
+ *
+ * Only in a build with the engine's extras (STAGEWRIGHT_EXTRAS=1 bash
+ * scripts/build-web.sh, cargo feature "extras" of stagewright-wasm):
+ * www/build.mjs then appends this file after element.js in the same
+ * function scope. The default page leaves both out: with them the page is
+ * over its 150 KB gzip budget (DEVELOPERS.md, "Size budget").
+ *
+ * The same house rules as element.js: user text only through textContent
+ * and .value; no eval, no inline handlers; every number from the engine.
+ */
+
+/** A yield as the command line prints it: never rounded up to 100 %. */
+function yieldText(y) {
+  return y >= 1 ? "100 %" : `${(Math.floor(y * 1e4) / 100).toFixed(2)} %`;
+}
+
+/** The unit of each Monte Carlo result (the gain is in V/V). */
+const MC_UNITS = {
+  ic: "A", vce: "V", voltage_gain: "", input_impedance: "Ω", output_impedance: "Ω", swing: "V",
+  f_low: "Hz", f_high: "Hz", junction_temperature: "°C", supply_current: "A",
+};
+
+Object.assign(StagewrightCalc.prototype, {
+  /** Builds both views at the end of the results column. */
+  _buildViews(column) {
+    this._specView = this._buildSpecView();
+    this._tolView = this._buildToleranceView();
+    column.append(this._specView, this._tolView);
+    if (this._api) this._fillSpecPresets(this._api);
+  },
+
+  /** The spec form's transistor menu, from the engine's presets. */
+  _fillSpecPresets(api) {
+    const sel = this._specInputs.preset;
+    sel.textContent = "";
+    for (const [v, t] of enginePresets(api)) sel.append(h("option", { value: v }, t));
+    sel.value = "general-purpose-npn";
+  },
+
+  /* ---------------- from requirements ---------------- */
+
+  /** The "from requirements" view: a specification form (and its JSON),
+   * designed by the engine's design_from_spec, the ideal and standard
+   * values side by side, and a button that loads the design. */
+  _buildSpecView() {
+    const id = this._id;
+    const field = (key, label, value, hint) => {
+      const input = h("input", { type: "text", id: id("spec-" + key), value: value || "", autocomplete: "off", spellcheck: "false" });
+      this._specInputs[key] = input;
+      return h("div", { class: "spec-field" }, h("label", { for: id("spec-" + key) }, label), input, hint ? h("span", { class: "hint" }, hint) : null);
+    };
+    const select = (key, label, options, value) => {
+      const input = h("select", { id: id("spec-" + key) }, ...options.map(([v, t]) => h("option", { value: v }, t)));
+      input.value = value;
+      this._specInputs[key] = input;
+      return h("div", { class: "spec-field" }, h("label", { for: id("spec-" + key) }, label), input);
+    };
+    this._specInputs = {};
+    const form = h("form", { class: "spec-form", novalidate: true },
+      h("fieldset", null, h("legend", null, "Stage"),
+        select("stage", "stage", STAGES, "common-emitter"),
+        select("preset", "transistor", [["general-purpose-npn", "general-purpose-npn"]], "general-purpose-npn"),
+        field("supply", "supply", "12", "V"),
+        field("rs", "source resistance", "600", "Ω"),
+        field("rl", "load resistance", "10k", "Ω")),
+      h("fieldset", null, h("legend", null, "Requirements"),
+        field("min_voltage_gain_db", "min. voltage gain", "20", "dB"),
+        field("max_voltage_gain_db", "max. voltage gain", "", "dB"),
+        field("min_input_impedance", "min. input impedance", "", "Ω"),
+        field("max_output_impedance", "max. output impedance", "", "Ω"),
+        field("min_swing", "min. swing (peak)", "", "V"),
+        field("max_f_low", "max. lower corner", "20", "Hz"),
+        field("min_f_high", "min. upper corner", "", "Hz"),
+        field("max_supply_current", "max. supply current", "", "A")),
+      h("fieldset", null, h("legend", null, "Intents"),
+        select("bias", "bias", [["max-swing", "max-swing"], ["ic", "given IC"], ["vce", "given |VCE|"]], "max-swing"),
+        field("bias_value", "IC or |VCE|", "", "A or V, for a given point"),
+        field("saturation_reserve", "saturation reserve", "", "V, default 0.5"),
+        field("stiffness", "stiffness k", "", "RTH = k·hFE(min)·RE, default 0.1"),
+        select("resistors", "resistor series", [["E12", "E12"], ["E24", "E24"], ["E96", "E96"]], "E24"),
+        select("capacitors", "capacitor series", [["E6", "E6"], ["E12", "E12"]], "E12"),
+        field("pins", "pinned parts", "", "e.g. rc=4k7, c_in=1u")));
+    form.addEventListener("submit", (e) => e.preventDefault());
+    form.addEventListener("input", () => this._writeSpecJson());
+    form.addEventListener("change", () => this._writeSpecJson());
+    this._specJson = h("textarea", { class: "spec-json", id: id("spec-json"), rows: 10, spellcheck: "false" });
+    const run = h("button", { type: "button", class: "primary", "data-action": "design-from-spec" }, "Design from requirements");
+    run.addEventListener("click", () => this.designFromSpec());
+    this._specError = h("p", { class: "spec-error", role: "alert", hidden: true });
+    this._specOut = h("div", { class: "spec-out" });
+    const view = h("details", { class: "card view-spec", "data-view": "spec" },
+      h("summary", null, h("h3", { id: id("h-spec") }, "From requirements")),
+      h("p", { class: "hint" }, "Give what the stage must meet; the engine designs it (as stagewright design SPEC does) and snaps every part to a standard value."),
+      form,
+      h("details", { class: "spec-json-box" }, h("summary", null, "Specification (JSON, stagewright-spec/1)"), h("label", { for: id("spec-json"), class: "visually-hidden" }, "specification JSON"), this._specJson),
+      h("p", { class: "actions" }, run),
+      this._specError, this._specOut);
+    this._writeSpecJson();
+    return view;
+  },
+
+  /** The specification the form describes, as JSON in the text box. */
+  _writeSpecJson() {
+    const v = (k) => this._specInputs[k].value.trim();
+    const spec = { format: "stagewright-spec/1", stage: v("stage"), supply: v("supply"), transistor: { preset: v("preset") }, rs: v("rs"), rl: v("rl") };
+    const req = {};
+    for (const k of ["min_voltage_gain_db", "max_voltage_gain_db", "min_input_impedance", "max_output_impedance", "min_swing", "max_f_low", "min_f_high", "max_supply_current"]) {
+      if (v(k)) req[k] = v(k);
+    }
+    spec.requirements = req;
+    if (v("bias") !== "max-swing" && v("bias_value")) spec.bias = { [v("bias")]: v("bias_value") };
+    if (v("saturation_reserve")) spec.saturation_reserve = v("saturation_reserve");
+    if (v("stiffness")) spec.stiffness = v("stiffness");
+    spec.series = { resistors: v("resistors"), capacitors: v("capacitors") };
+    const pins = {};
+    for (const item of v("pins").split(/[,;\s]+/)) {
+      const m = /^([a-z_]+)=(.+)$/.exec(item);
+      if (m) pins[m[1]] = m[2];
+    }
+    if (Object.keys(pins).length) spec.parts = pins;
+    this._specJson.value = JSON.stringify(spec, null, 2);
+  },
+
+  /** Designs the specification in the text box (or `spec`, an object or
+   * JSON text) and shows the result; returns it, or null with the core's
+   * message shown in place. */
+  designFromSpec(spec) {
+    const api = this._api;
+    if (!this._specOut) return null;
+    if (spec !== undefined) this._specJson.value = typeof spec === "string" ? spec : JSON.stringify(spec, null, 2);
+    this._specOut.textContent = "";
+    this._specError.hidden = true;
+    this.specResult = null;
+    if (!api || typeof api.design_from_spec !== "function") {
+      this._specError.textContent = "The engine is not ready yet.";
+      this._specError.hidden = false;
+      return null;
+    }
+    let text = this._specJson.value;
+    try {
+      JSON.parse(text);
+    } catch (err) {
+      this._specError.textContent = `The specification is not valid JSON: ${err.message}`;
+      this._specError.hidden = false;
+      return null;
+    }
+    let r;
+    try {
+      r = api.design_from_spec(text);
+    } catch (err) {
+      const e = asFieldError(err);
+      this._specError.textContent = e.message;
+      this._specError.hidden = false;
+      this._announce(e.message);
+      return null;
+    }
+    this.specResult = r;
+    const f = (v, unit) => (typeof v === "number" && Number.isFinite(v) ? api.format_si(v, unit) : "—");
+    const signed = (v, unit) => (typeof v === "number" && Number.isFinite(v) ? (v > 0 ? "+" : "") + api.format_si(v, unit === "°C" ? "K" : unit) : "—");
+    const parts = h("table", { class: "numbers spec-parts" },
+      h("caption", null, "Parts: ideal and standard values"),
+      h("thead", null, h("tr", null, ...["part", "ideal", "chosen", "change", "from"].map((c) => h("th", { scope: "col" }, c)))),
+      h("tbody", null, ...r.parts.map((p) => {
+        const unit = p.part.startsWith("c_") ? "F" : "Ω";
+        return h("tr", null, h("th", { scope: "row" }, p.part), h("td", null, f(p.ideal, unit)), h("td", null, f(p.chosen, unit)),
+          h("td", null, p.pinned ? "" : `${p.change >= 0 ? "+" : ""}${(100 * p.change).toFixed(2)} %`), h("td", null, p.series || "pinned"));
+      })));
+    const diffs = h("table", { class: "numbers spec-diffs" },
+      h("caption", null, "Results: ideal and standard-value design"),
+      h("thead", null, h("tr", null, ...["result", "ideal", "standard", "difference"].map((c) => h("th", { scope: "col" }, c)))),
+      h("tbody", null, ...r.differences.map((d) => h("tr", null, h("th", { scope: "row" }, d.quantity.replace(/_db$/, " (dB)").replace(/_/g, " ")),
+        h("td", null, f(d.ideal, d.unit)), h("td", null, f(d.snapped, d.unit)), h("td", null, signed(d.difference, d.unit))))));
+    const failing = r.report.checks.filter((c) => !c.pass);
+    const load = h("button", { type: "button", class: "primary", "data-action": "load-spec-design" }, "Load this design into the calculator");
+    load.addEventListener("click", () => {
+      this._loadDesign(r.design, false);
+      this._frame.scrollIntoView({ block: "start" });
+    });
+    this._specOut.append(
+      h("p", { class: "spec-verdict " + (r.pass ? "pass" : "fail") },
+        r.pass ? "The standard-value design passes every check." : `The standard-value design fails ${failing.length} check(s): ${failing.map((c) => c.id).join(", ")}.`),
+      h("div", { class: "spec-tables" }, parts, diffs),
+      h("ul", { class: "spec-notes", hidden: !r.notes.length }, ...r.notes.map((n) => h("li", null, n))),
+      h("p", { class: "actions" }, load));
+    this._announce(r.pass ? "Designed: every check passes." : "Designed, with failing checks.");
+    return r;
+  },
+
+  /* ---------------- tolerances ---------------- */
+
+  _buildToleranceView() {
+    const id = this._id;
+    this._tolTrials = h("input", { type: "number", id: id("tol-n"), value: "10000", min: "1", max: "1000000", step: "1" });
+    this._tolSeed = h("input", { type: "text", id: id("tol-seed"), value: "1", inputmode: "numeric", autocomplete: "off" });
+    const run = h("button", { type: "button", class: "primary", "data-action": "run-tolerance" }, "Run");
+    run.addEventListener("click", () => this.runTolerance());
+    this._tolProgress = h("progress", { max: "1", value: "0", hidden: true, "aria-label": "Monte Carlo progress" });
+    this._tolError = h("p", { class: "spec-error", role: "alert", hidden: true });
+    this._tolOut = h("div", { class: "tol-out" });
+    this._tolHist = h("canvas", { class: "plot hist", role: "img", "aria-label": "Histogram of the chosen result over the Monte Carlo trials" });
+    this._tolHistPick = h("select", { id: id("tol-hist"), "aria-label": "result shown in the histogram" });
+    this._tolHistPick.addEventListener("change", () => this._drawHistogram());
+    this._tolHistTable = h("div", { class: "table-wrap" });
+    this._tolHistBox = h("figure", { class: "hist-box", hidden: true },
+      h("figcaption", null, h("label", { for: id("tol-hist") }, "Histogram of "), this._tolHistPick),
+      this._tolHist, h("details", { class: "plot-numbers" }, h("summary", null, "Show numbers"), this._tolHistTable));
+    return h("details", { class: "card view-tol", "data-view": "tolerance" },
+      h("summary", null, h("h3", { id: id("h-tol") }, "Tolerances")),
+      h("p", { class: "hint" }, "Worst case over the tolerance box (the design's tolerances block, or the defaults), the sensitivities and a seeded Monte Carlo run, as stagewright check --worst-case --monte-carlo N --seed S gives them."),
+      h("p", { class: "tol-inputs" },
+        h("label", { for: id("tol-n") }, "trials N "), this._tolTrials,
+        h("label", { for: id("tol-seed") }, " seed "), this._tolSeed, " ", run, " ", this._tolProgress),
+      this._tolError, this._tolOut, this._tolHistBox);
+  },
+
+  /** Runs the tolerance analysis of the current design: the worst case at
+   * once, the Monte Carlo trials in chunks between frames. Resolves to
+   * {report, summary} (also kept as `toleranceResult`), or null. */
+  runTolerance(trials, seed) {
+    const api = this._api;
+    if (trials !== undefined) this._tolTrials.value = String(trials);
+    if (seed !== undefined) this._tolSeed.value = String(seed);
+    if (this._tolRun) this._tolRun.free();
+    this._tolRun = null;
+    const token = (this._tolToken = (this._tolToken || 0) + 1);
+    this._tolOut.textContent = "";
+    this._tolError.hidden = true;
+    this._tolHistBox.hidden = true;
+    this.toleranceResult = null;
+    const fail = (msg) => {
+      this._tolError.textContent = msg;
+      this._tolError.hidden = false;
+      this._tolProgress.hidden = true;
+      return Promise.resolve(null);
+    };
+    if (!api || typeof api.Tolerance !== "function" || !this._design) return fail("The engine is not ready yet.");
+    let t;
+    try {
+      t = new api.Tolerance(JSON.stringify(this._exportDesign()), Number(this._tolTrials.value), this._tolSeed.value);
+    } catch (err) {
+      const e = asFieldError(err);
+      return fail(e.message);
+    }
+    this._tolRun = t;
+    const report = t.report();
+    this._renderWorst(report);
+    const n = Number(this._tolTrials.value) | 0;
+    const started = performance.now();
+    let next = 0;
+    let chunk = 200;
+    return new Promise((resolve) => {
+      const step = () => {
+        if (token !== this._tolToken) return resolve(null);
+        const t0 = performance.now();
+        // About 12 ms of trials a turn, so the page keeps answering.
+        while (next < n && performance.now() - t0 < 12) {
+          next += t.run_chunk(next, chunk);
+          const spent = performance.now() - t0;
+          if (spent < 4) chunk = Math.min(chunk * 2, 5000);
+        }
+        if (next < n) {
+          if (performance.now() - started > 200) {
+            this._tolProgress.hidden = false;
+            this._tolProgress.value = next / n;
+          }
+          setTimeout(step, 0);
+          return;
+        }
+        this._tolProgress.hidden = true;
+        const summary = t.summary();
+        this.toleranceResult = { report, summary, ms: performance.now() - started };
+        this._renderMonteCarlo(summary);
+        this._announce(`Monte Carlo yield ${yieldText(summary.yield)} of ${summary.completed} trials.`);
+        resolve(this.toleranceResult);
+      };
+      setTimeout(step, 0);
+    });
+  },
+
+  _renderWorst(r) {
+    const api = this._api;
+    const f = (v, unit) => (typeof v === "number" && Number.isFinite(v) ? api.format_si(v, unit) : "—");
+    const corner = (c) => {
+      if (!c) return "—";
+      const s = c.settings.filter((x) => x.level !== "nominal").map((x) => (x.level === "max" ? "+" : "−") + x.parameter);
+      return s.length ? s.join(" ") : "nominal";
+    };
+    const w = r.worst_case;
+    const worst = h("table", { class: "numbers tol-worst" },
+      h("caption", null, `Worst case over ${w.vertices} vertices` + (w.inactive_vertices ? ` (${w.inactive_vertices} not in the active region: vertex extremes only)` : "")),
+      h("thead", null, h("tr", null, ...["result", "nominal", "min", "max", "min at", "max at"].map((c) => h("th", { scope: "col" }, c)))),
+      h("tbody", null, ...w.extremes.map((e) => h("tr", null, h("th", { scope: "row" }, e.quantity.replace(/_/g, " ")),
+        h("td", null, f(e.nominal, MC_UNITS[e.quantity])), h("td", null, f(e.min, MC_UNITS[e.quantity])), h("td", null, f(e.max, MC_UNITS[e.quantity])),
+        h("td", { class: "corner" }, corner(e.min_corner)), h("td", { class: "corner" }, corner(e.max_corner))))));
+    const checks = r.checks.length
+      ? h("table", { class: "numbers tol-checks" },
+        h("caption", null, "Requirements at their worst vertex (+ at max, − at min, others nominal)"),
+        h("thead", null, h("tr", null, ...["", "requirement", "value", "limit", "at"].map((c) => h("th", { scope: "col" }, c)))),
+        h("tbody", null, ...r.checks.map((c) => h("tr", { class: c.pass ? "pass" : "fail" },
+          h("td", null, c.pass ? "pass" : "FAIL"), h("th", { scope: "row" }, c.id),
+          h("td", null, f(c.value, c.unit)), h("td", null, f(c.limit, c.unit)), h("td", { class: "corner" }, corner(c.corner))))))
+      : h("p", { class: "hint" }, "No requirements set: nothing to judge at the vertices.");
+    const sens = h("table", { class: "numbers tol-sens" },
+      h("caption", null, "Sensitivity: % change of the result per % change of the parameter, largest first"),
+      h("thead", null, h("tr", null, ...["result", "parameter", "%/%"].map((c) => h("th", { scope: "col" }, c)))),
+      h("tbody", null, ...r.sensitivity.map((s) => h("tr", null, h("th", { scope: "row" }, s.quantity.replace(/_/g, " ")),
+        h("td", null, s.parameter), h("td", null, (s.percent_per_percent >= 0 ? "+" : "") + s.percent_per_percent.toFixed(3))))));
+    this._tolOut.append(h("div", { class: "tol-tables" }, worst, checks),
+      h("details", { class: "tol-sens-box" }, h("summary", null, `Sensitivity (${r.sensitivity.length} entries)`), sens));
+  },
+
+  _renderMonteCarlo(s) {
+    const api = this._api;
+    const f = (v, unit) => (typeof v === "number" && Number.isFinite(v) ? api.format_si(v, unit) : "—");
+    const extra = s.no_solution || s.not_active ? `; ${s.no_solution} without an operating point, ${s.not_active} saturated or cut off` : "";
+    const each = s.requirements.map((r) => `${r.requirement} ${yieldText(r.yield)}`).join(", ");
+    const dist = h("table", { class: "numbers tol-mc" },
+      h("caption", null, "Percentiles over the trials"),
+      h("thead", null, h("tr", null, ...["result", "p1", "p50", "p99", "mean"].map((c) => h("th", { scope: "col" }, c)))),
+      h("tbody", null, ...s.distributions.map((d) => {
+        const unit = MC_UNITS[d.quantity] || "";
+        return h("tr", null, h("th", { scope: "row" }, d.quantity.replace(/_db$/, " (dB)").replace(/_/g, " ")),
+          h("td", null, f(d.p1, unit)), h("td", null, f(d.p50, unit)), h("td", null, f(d.p99, unit)), h("td", null, f(d.mean, unit)));
+      })));
+    this._tolOut.append(
+      h("p", { class: "tol-yield" }, h("strong", null, `Yield ${yieldText(s.yield)}`), ` of ${s.completed} trials, seed ${s.seed}${extra}.`, each ? ` Each requirement: ${each}.` : ""),
+      dist);
+    this._tolSummary = s;
+    const pick = this._tolHistPick;
+    const prior = pick.value;
+    pick.textContent = "";
+    for (const d of s.distributions) pick.append(h("option", { value: d.quantity }, d.quantity.replace(/_/g, " ")));
+    if (prior && s.distributions.some((d) => d.quantity === prior)) pick.value = prior;
+    this._tolHistBox.hidden = !s.distributions.length;
+    this._drawHistogram();
+  },
+
+  /** The chosen result's histogram: a step outline on the wasm plotter,
+   * its bins in a table beside it. */
+  _drawHistogram() {
+    const api = this._api;
+    const s = this._tolSummary;
+    const d = s && s.distributions.find((x) => x.quantity === this._tolHistPick.value);
+    if (!api || !d) return;
+    const unit = MC_UNITS[d.quantity] || "";
+    const bins = d.histogram.counts.length;
+    const width = (d.histogram.to - d.histogram.from) / bins;
+    const x = [];
+    const y = [];
+    let top = 0;
+    d.histogram.counts.forEach((c, i) => {
+      const lo = d.histogram.from + i * width;
+      x.push(lo, lo, lo + width, lo + width);
+      y.push(0, c, c, 0);
+      top = Math.max(top, c);
+    });
+    const t = this._theme();
+    const ratio = window.devicePixelRatio || 1;
+    const c = this._tolHist;
+    const pad = width > 0 ? width : Math.abs(d.histogram.from) * 0.01 || 1;
+    try {
+      api.plot_xy(c, {
+        curves: [{ name: d.quantity.replace(/_/g, " "), x: new Float64Array(x), y: new Float64Array(y), color: t.traces[0], width: 2 }],
+        markers: [
+          { x: d.p1, y: 0, label: "p1", color: t.marker, shape: "cross" },
+          { x: d.p50, y: 0, label: "p50", color: t.marker, shape: "dot" },
+          { x: d.p99, y: 0, label: "p99", color: t.marker, shape: "cross" },
+        ],
+        x_name: d.quantity.replace(/_/g, " "), y_name: "trials", x_unit: unit, y_unit: "",
+        x_range: new Float64Array([d.histogram.from - pad, d.histogram.to + pad]),
+        y_range: new Float64Array([0, Math.max(1, top * 1.1)]),
+        theme: t.theme,
+        pixel_size: new Float64Array([Math.round(c.clientWidth * ratio), Math.round(c.clientHeight * ratio)]),
+        pixel_ratio: ratio,
+      });
+    } catch (err) {
+      c.setAttribute("data-error", asFieldError(err).message);
+    }
+    const f = (v) => api.format_si(v, unit);
+    this._tolHistTable.textContent = "";
+    this._tolHistTable.append(h("table", { class: "numbers" },
+      h("thead", null, h("tr", null, h("th", { scope: "col" }, "from"), h("th", { scope: "col" }, "to"), h("th", { scope: "col" }, "trials"))),
+      h("tbody", null, ...d.histogram.counts.map((n, i) => h("tr", null,
+        h("td", null, f(d.histogram.from + i * width)), h("td", null, f(d.histogram.from + (i + 1) * width)), h("td", null, String(n)))))));
+  }
+});
