@@ -1,7 +1,14 @@
 #!/usr/bin/env bash
-# Builds the web deliverables:
-#   dist/stagewright.html  self-contained page, opens from file:// offline
-#   dist/stagewright.js    embeddable classic script defining <stagewright-calc>
+# Builds the web deliverables, both every time:
+#   dist/stagewright.html           the calculator: self-contained page, opens
+#                                   from file:// offline (budget 150 KB gzip)
+#   dist/stagewright.js             embeddable classic script defining
+#                                   <stagewright-calc>
+#   dist/stagewright-designer.html  the offline designer: the calculator plus
+#                                   the "from requirements" and tolerance
+#                                   views (engine feature `extras`, the views
+#                                   of www/views.js; budget 200 KB gzip)
+#   dist/stagewright-designer.js    the same element with those views
 #
 # Tools: rustup + cargo + node (>= 18) + npm. Steps: add the wasm target if
 # missing; install the wasm-bindgen CLI of exactly the version in Cargo.lock
@@ -9,8 +16,10 @@
 # www/package-lock.json) if missing; `cargo build` the wasm crate with
 # a size-tuned release profile; `wasm-bindgen --target no-modules`; then
 # `node www/build.mjs` minifies and inlines everything, prints the size
-# report (raw and gzip of the wasm and of both files) and fails when
-# dist/stagewright.html is over its budget (400 KB raw, 150 KB gzip).
+# report (raw and gzip of the wasm and of both files) and fails when the
+# page is over its budget (calculator: 400 KB raw, 150 KB gzip; designer:
+# 400 KB raw, 200 KB gzip). Steps 4 to 6 run once per deliverable, in the
+# same target directory: only the wasm crate is rebuilt the second time.
 #
 # wasm-opt is never run: the Debian binaryen package produces modules that
 # fail at start-up. Nothing here calls it, and wasm-pack (which would) is
@@ -21,21 +30,7 @@ cd "$(dirname "${BASH_SOURCE[0]}")/.."
 ROOT="$PWD"
 TARGET=wasm32-unknown-unknown
 TARGET_DIR="$ROOT/target/wasm"
-BINDGEN_OUT="$TARGET_DIR/bindgen"
 OUT_DIR="$ROOT/dist"
-# STAGEWRIGHT_EXTRAS=1: the engine with the "from requirements" and
-# tolerance exports and the page with their views (www/views.js), written
-# to target/wasm/dist-extras/ instead of dist/: over the size budget, so a
-# development build, not a deliverable.
-FEATURES=()
-EXTRAS_FLAG=()
-if [ "${STAGEWRIGHT_EXTRAS:-}" = 1 ]; then
-  FEATURES=(--features extras)
-  EXTRAS_FLAG=(--extras)
-  BINDGEN_OUT="$TARGET_DIR/bindgen-extras"
-  OUT_DIR="$TARGET_DIR/dist-extras"
-fi
-
 say() { printf '\n==> %s\n' "$*"; }
 
 export PATH="${CARGO_HOME:-$HOME/.cargo}/bin:$PATH"
@@ -87,29 +82,42 @@ if [ ! -d www/node_modules/terser ] || [ ! -d www/node_modules/esbuild ] || [ ! 
   (cd www && npm ci --no-audit --no-fund)
 fi
 
-# 4. The wasm module, tuned for size. The root profile is shared with the
-# native builds, so the size settings come in through the environment.
-say "building stagewright-wasm for $TARGET"
-CARGO_PROFILE_RELEASE_OPT_LEVEL=z \
-CARGO_PROFILE_RELEASE_LTO=true \
-CARGO_PROFILE_RELEASE_CODEGEN_UNITS=1 \
-CARGO_PROFILE_RELEASE_PANIC=abort \
-CARGO_PROFILE_RELEASE_DEBUG=false \
-CARGO_PROFILE_RELEASE_INCREMENTAL=false \
-  cargo build -p stagewright-wasm "${FEATURES[@]}" --release --target "$TARGET" --target-dir "$TARGET_DIR"
+# 4.–6., once per deliverable: NAME, then the cargo features and the flag
+# for www/build.mjs.
+build_one() {
+  local name="$1" features=("${@:2}") bindgen_out
+  bindgen_out="$TARGET_DIR/bindgen-$name"
+  # 4. The wasm module, tuned for size. The root profile is shared with the
+  # native builds, so the size settings come in through the environment.
+  say "building stagewright-wasm for $TARGET (${name})"
+  CARGO_PROFILE_RELEASE_OPT_LEVEL=z \
+  CARGO_PROFILE_RELEASE_LTO=true \
+  CARGO_PROFILE_RELEASE_CODEGEN_UNITS=1 \
+  CARGO_PROFILE_RELEASE_PANIC=abort \
+  CARGO_PROFILE_RELEASE_DEBUG=false \
+  CARGO_PROFILE_RELEASE_INCREMENTAL=false \
+    cargo build -p stagewright-wasm "${features[@]}" --release --target "$TARGET" --target-dir "$TARGET_DIR"
 
-# 5. JavaScript glue for a classic script (no ES modules: file:// pages
-# cannot load modules or fetch the wasm).
-say "wasm-bindgen $WB_VERSION (no-modules)"
-rm -rf "$BINDGEN_OUT"
-wasm-bindgen "$TARGET_DIR/$TARGET/release/stagewright_wasm.wasm" \
-  --out-dir "$BINDGEN_OUT" \
-  --target no-modules \
-  --no-typescript \
-  --omit-default-module-path \
-  --remove-name-section \
-  --remove-producers-section
+  # 5. JavaScript glue for a classic script (no ES modules: file:// pages
+  # cannot load modules or fetch the wasm).
+  say "wasm-bindgen $WB_VERSION (no-modules, ${name})"
+  rm -rf "$bindgen_out"
+  wasm-bindgen "$TARGET_DIR/$TARGET/release/stagewright_wasm.wasm" \
+    --out-dir "$bindgen_out" \
+    --target no-modules \
+    --no-typescript \
+    --omit-default-module-path \
+    --remove-name-section \
+    --remove-producers-section
 
-# 6. One page and one script, and the size report.
-say "assembling ${OUT_DIR#"$ROOT"/}/"
-node www/build.mjs --bindgen "$BINDGEN_OUT" --out "$OUT_DIR" "${EXTRAS_FLAG[@]}"
+  # 6. One page and one script, and the size report.
+  say "assembling dist/${name}.html and dist/${name}.js"
+  if [ "$name" = stagewright-designer ]; then
+    node www/build.mjs --bindgen "$bindgen_out" --out "$OUT_DIR" --designer
+  else
+    node www/build.mjs --bindgen "$bindgen_out" --out "$OUT_DIR"
+  fi
+}
+
+build_one stagewright
+build_one stagewright-designer --features extras

@@ -6,6 +6,8 @@
   var Calc = window.customElements && window.customElements.get("stagewright-calc");
   if (!el || !Calc) return;
   var written = "";
+  // "Stagewright" or "Stagewright designer" (www/build.mjs).
+  var appName = document.title;
 
   function fromHash() {
     var m = /^#design=(.+)$/.exec(location.hash);
@@ -26,7 +28,7 @@
       written = hash;
       history.replaceState(history.state, "", hash);
     }
-    document.title = (typeof design.title === "string" && design.title ? design.title + " · " : "") + "Stagewright";
+    document.title = (typeof design.title === "string" && design.title ? design.title + " · " : "") + appName;
   }
   el.addEventListener("stagewright-design", function (e) {
     if (!e.detail || !e.detail.design) return;

@@ -1,10 +1,11 @@
 /* Stagewright: the "from requirements" and tolerance views.
  *
- * Only in a build with the engine's extras (STAGEWRIGHT_EXTRAS=1 bash
- * scripts/build-web.sh, cargo feature "extras" of stagewright-wasm):
- * www/build.mjs then appends this file after element.js in the same
- * function scope. The default page leaves both out: with them the page is
- * over its 150 KB gzip budget (DEVELOPERS.md, "Size budget").
+ * Only in the offline designer (dist/stagewright-designer.html and .js,
+ * whose engine has the cargo feature "extras" of stagewright-wasm):
+ * www/build.mjs --designer appends this file after element.js in the same
+ * function scope. The calculator (dist/stagewright.html and .js) leaves
+ * both out: with them it would be over its 150 KB gzip budget
+ * (DEVELOPERS.md, "Size").
  *
  * The same house rules as element.js: user text only through textContent
  * and .value; no eval, no inline handlers; every number from the engine.
@@ -146,8 +147,11 @@ Object.assign(StagewrightCalc.prototype, {
       return null;
     }
     let r;
+    const t0 = performance.now();
     try {
       r = api.design_from_spec(text);
+      // The engine's time alone (bench.mjs reads it; the tables come after).
+      this.specTiming = { engine: performance.now() - t0 };
     } catch (err) {
       const e = asFieldError(err);
       this._specError.textContent = e.message;
@@ -216,7 +220,10 @@ Object.assign(StagewrightCalc.prototype, {
 
   /** Runs the tolerance analysis of the current design: the worst case at
    * once, the Monte Carlo trials in chunks between frames. Resolves to
-   * {report, summary} (also kept as `toleranceResult`), or null. */
+   * {report, summary, ms, timing} (also kept as `toleranceResult`), or
+   * null. `ms` is the whole run, drawing included; `timing` the engine's
+   * share in ms: `setup` (the vertices and sensitivities), `trials` (the
+   * run_chunk calls summed), `summary`, `chunks` (how many calls). */
   runTolerance(trials, seed) {
     const api = this._api;
     if (trials !== undefined) this._tolTrials.value = String(trials);
@@ -236,6 +243,7 @@ Object.assign(StagewrightCalc.prototype, {
     };
     if (!api || typeof api.Tolerance !== "function" || !this._design) return fail("The engine is not ready yet.");
     let t;
+    const started = performance.now();
     try {
       t = new api.Tolerance(JSON.stringify(this._exportDesign()), Number(this._tolTrials.value), this._tolSeed.value);
     } catch (err) {
@@ -243,10 +251,10 @@ Object.assign(StagewrightCalc.prototype, {
       return fail(e.message);
     }
     this._tolRun = t;
+    const timing = { setup: performance.now() - started, trials: 0, summary: 0, chunks: 0 };
     const report = t.report();
     this._renderWorst(report);
     const n = Number(this._tolTrials.value) | 0;
-    const started = performance.now();
     let next = 0;
     let chunk = 200;
     return new Promise((resolve) => {
@@ -255,7 +263,10 @@ Object.assign(StagewrightCalc.prototype, {
         const t0 = performance.now();
         // About 12 ms of trials a turn, so the page keeps answering.
         while (next < n && performance.now() - t0 < 12) {
+          const c0 = performance.now();
           next += t.run_chunk(next, chunk);
+          timing.trials += performance.now() - c0;
+          timing.chunks++;
           const spent = performance.now() - t0;
           if (spent < 4) chunk = Math.min(chunk * 2, 5000);
         }
@@ -268,9 +279,11 @@ Object.assign(StagewrightCalc.prototype, {
           return;
         }
         this._tolProgress.hidden = true;
+        const s0 = performance.now();
         const summary = t.summary();
-        this.toleranceResult = { report, summary, ms: performance.now() - started };
+        timing.summary = performance.now() - s0;
         this._renderMonteCarlo(summary);
+        this.toleranceResult = { report, summary, ms: performance.now() - started, timing };
         this._announce(`Monte Carlo yield ${yieldText(summary.yield)} of ${summary.completed} trials.`);
         resolve(this.toleranceResult);
       };

@@ -11,8 +11,8 @@
 //!   report, frequency sweep and load lines ([`compute`], [`analyze`],
 //!   [`presets`], [`preset_data`]); with the feature `extras`, also
 //!   designs a specification (`design_from_spec`) and runs the tolerance
-//!   analysis in chunks (`Tolerance`), which the default page leaves out
-//!   for its size budget;
+//!   analysis in chunks (`Tolerance`): the offline designer has them,
+//!   the calculator leaves them out for its size budget;
 //! * draws plots on canvases ([`plot_frequency`], [`plot_xy`]).
 //!
 //! It holds no circuit equation: every number the page shows comes from the

@@ -1,29 +1,35 @@
-// The "from requirements" and tolerance views, which only a build with the
-// engine's extras has (STAGEWRIGHT_EXTRAS=1 bash scripts/build-web.sh writes
-// target/wasm/dist-extras/; the default page leaves them out for its size
-// budget). Skipped when that build is missing.
+// The offline designer, dist/stagewright-designer.html (and its script,
+// dist/stagewright-designer.js): the calculator with the "from requirements"
+// and tolerance views. scripts/build-web.sh builds it beside the calculator
+// every time; a missing file fails these tests, it is never skipped.
 //
+// - the files exist; the page's report equals `stagewright analyze FILE
+//   --json` for an example, as the calculator's does;
 // - the design of every examples/specs/*.spec.json equals `stagewright
 //   design SPEC --json` (the same core function, JSON through the browser);
 // - an unmeetable specification shows the core's message in place;
 // - the same seed gives the same Monte Carlo yield and percentiles as
 //   `stagewright check FILE --monte-carlo N --seed S --json` (exact, or
 //   1e-12 relative), and the worst-vertex verdicts agree;
-// - screenshots of both views, and the timings (median of 10 000 trials
-//   and of one synthesis), printed, never failing.
+// - the script alone, on a page with the CSP `script-src 'self'
+//   'wasm-unsafe-eval'`, has both views;
+// - no network request anywhere; screenshots of each view in artifacts/
+//   (designer-*.png). Timings are bench.mjs's.
 
 import assert from "node:assert/strict";
 import { execFileSync } from "node:child_process";
-import { existsSync, readdirSync, readFileSync } from "node:fs";
+import { existsSync, mkdirSync, readdirSync, readFileSync } from "node:fs";
 import path from "node:path";
 import { test } from "node:test";
 import { pathToFileURL } from "node:url";
 
-import { artifacts, launch, networkRequests, root, waitReady } from "./helpers.mjs";
+import {
+  artifacts, cliReport, designerHtml, designerScriptPath, jsonDifferences, launch, networkRequests, root, waitReady, waitReport,
+} from "./helpers.mjs";
 
-const extrasHtml = path.join(root, "target", "wasm", "dist-extras", "stagewright.html");
-const skip = existsSync(extrasHtml) ? false : "no extras build (STAGEWRIGHT_EXTRAS=1 bash scripts/build-web.sh)";
 const bin = path.join(root, "target", "release", "stagewright");
+const BUILD = "bash scripts/build-web.sh builds it";
+mkdirSync(artifacts, { recursive: true });
 
 function cli(args) {
   try {
@@ -40,12 +46,44 @@ function close(a, b) {
 
 async function open(b) {
   const page = await b.page();
-  await page.goto(pathToFileURL(extrasHtml).href);
+  assert.ok(existsSync(designerHtml), `${path.relative(root, designerHtml)} is missing (${BUILD})`);
+  await page.goto(pathToFileURL(designerHtml).href);
   await waitReady(page);
   return page;
 }
 
-test("extras: designs from specifications as the command line does", { skip }, async () => {
+test("designer: both files were built", () => {
+  for (const f of [designerHtml, designerScriptPath]) {
+    assert.ok(existsSync(f), `${path.relative(root, f)} is missing (${BUILD})`);
+  }
+});
+
+test("designer: the report equals the command line's, with both views on the page", async () => {
+  const b = await launch();
+  try {
+    const page = await open(b);
+    await waitReport(page);
+    const file = path.join(root, "examples", "transducer-gain-stage.json");
+    const seen = await page.evaluate((t) => {
+      const el = document.querySelector("stagewright-calc");
+      el.design = t;
+      const views = Array.from(el.shadowRoot.querySelectorAll("[data-view]"), (v) => v.getAttribute("data-view"));
+      return { report: el.report, views, title: document.title };
+    }, readFileSync(file, "utf8"));
+    const diffs = jsonDifferences(seen.report, cliReport(file));
+    assert.deepEqual(diffs, [], `differences:\n${diffs.slice(0, 20).join("\n")}`);
+    assert.ok(seen.views.includes("spec") && seen.views.includes("tolerance"), `views: ${seen.views.join(", ")}`);
+    assert.match(seen.title, /Stagewright designer$/);
+    await page.evaluate(() => window.scrollTo(0, 0));
+    await page.screenshot({ path: path.join(artifacts, "designer-page.png"), fullPage: true });
+    assert.deepEqual(networkRequests(b.requests), []);
+    assert.deepEqual(b.errors, []);
+  } finally {
+    await b.close();
+  }
+});
+
+test("designer: designs from specifications as the command line does", async () => {
   const b = await launch();
   try {
     const page = await open(b);
@@ -61,7 +99,7 @@ test("extras: designs from specifications as the command line does", { skip }, a
       assert.deepEqual(got, expected, name);
     }
     await page.evaluate(() => document.querySelector("stagewright-calc").shadowRoot.querySelector("[data-view=spec]").scrollIntoView());
-    await page.screenshot({ path: path.join(artifacts, "extras-from-requirements.png"), fullPage: false });
+    await page.screenshot({ path: path.join(artifacts, "designer-from-requirements.png"), fullPage: false });
     // Unmeetable: the core's explanation, in place.
     const spec = JSON.parse(readFileSync(path.join(dir, "line-driver.spec.json"), "utf8"));
     spec.requirements.min_swing = 9;
@@ -75,7 +113,7 @@ test("extras: designs from specifications as the command line does", { skip }, a
     assert.equal(message.hidden, false);
     assert.match(message.text, /^requirements\.min_swing: 9 V peak is more than the supply allows/);
     await page.evaluate(() => document.querySelector("stagewright-calc").shadowRoot.querySelector(".view-spec .spec-error").scrollIntoView({ block: "center" }));
-    await page.screenshot({ path: path.join(artifacts, "extras-unmeetable.png") });
+    await page.screenshot({ path: path.join(artifacts, "designer-unmeetable.png") });
     // Load the snapped design into the calculator.
     const loaded = await page.evaluate((text) => {
       const el = document.querySelector("stagewright-calc");
@@ -91,11 +129,10 @@ test("extras: designs from specifications as the command line does", { skip }, a
   }
 });
 
-test("extras: the same seed gives the command line's Monte Carlo", { skip }, async () => {
+test("designer: the same seed gives the command line's Monte Carlo", async () => {
   const b = await launch();
   try {
     const page = await open(b);
-    const timings = [];
     for (const [name, trials, seed] of [["transducer-gain-stage.json", 10000, "1"], ["sensor-cable-buffer.json", 2000, "42"]]) {
       const file = path.join(root, "examples", name);
       const entry = JSON.parse(cli(["check", file, "--worst-case", "--monte-carlo", String(trials), "--seed", seed, "--json"]));
@@ -106,7 +143,6 @@ test("extras: the same seed gives the command line's Monte Carlo", { skip }, asy
         el.shadowRoot.querySelector("[data-view=tolerance]").open = true;
         return el.runTolerance(n, s);
       }, [readFileSync(file, "utf8"), trials, seed]);
-      timings.push(got.ms);
       const mc = want.monte_carlo;
       assert.ok(close(got.summary.yield, mc.yield), `${name}: yield ${got.summary.yield} vs ${mc.yield}`);
       assert.equal(got.summary.completed, mc.completed);
@@ -120,10 +156,45 @@ test("extras: the same seed gives the command line's Monte Carlo", { skip }, asy
       assert.deepEqual(got.report.checks.map((c) => [c.id, c.pass, c.value]), checks, `${name}: worst-vertex checks`);
     }
     await page.evaluate(() => document.querySelector("stagewright-calc").shadowRoot.querySelector("[data-view=tolerance]").scrollIntoView());
-    await page.screenshot({ path: path.join(artifacts, "extras-tolerance.png") });
+    await page.screenshot({ path: path.join(artifacts, "designer-tolerance.png") });
     await page.evaluate(() => document.querySelector("stagewright-calc").shadowRoot.querySelector(".hist-box").scrollIntoView());
-    await page.screenshot({ path: path.join(artifacts, "extras-histogram.png") });
+    await page.screenshot({ path: path.join(artifacts, "designer-histogram.png") });
     assert.deepEqual(networkRequests(b.requests), []);
+    assert.deepEqual(b.errors, []);
+  } finally {
+    await b.close();
+  }
+});
+
+test("designer: the script alone, under a strict CSP, has both views", async () => {
+  const ORIGIN = "https://wiki.example";
+  const script = readFileSync(designerScriptPath);
+  const spec = readFileSync(path.join(root, "examples", "specs", "geophone-preamp.spec.json"), "utf8");
+  const b = await launch({ viewport: { width: 1280, height: 900 } });
+  try {
+    await b.context.route(`${ORIGIN}/**`, (route) => {
+      const url = new URL(route.request().url());
+      if (url.pathname === "/stagewright-designer.js") {
+        return route.fulfill({ status: 200, contentType: "text/javascript", body: script });
+      }
+      return route.fulfill({
+        status: 200,
+        headers: { "content-type": "text/html; charset=utf-8", "content-security-policy": "script-src 'self' 'wasm-unsafe-eval'" },
+        body: '<!doctype html><html lang="en"><head><meta charset="utf-8"><title>Designer</title>' +
+          '<script src="/stagewright-designer.js"></script></head><body><stagewright-calc></stagewright-calc></body></html>',
+      });
+    });
+    const page = await b.page();
+    await page.goto(`${ORIGIN}/designer.html`);
+    await waitReady(page);
+    const r = await page.evaluate((text) => {
+      const el = document.querySelector("stagewright-calc");
+      el.shadowRoot.querySelector("[data-view=spec]").open = true;
+      return el.designFromSpec(text);
+    }, spec);
+    assert.deepEqual(r, JSON.parse(cli(["design", path.join(root, "examples", "specs", "geophone-preamp.spec.json"), "--json"])));
+    const outside = b.requests.filter((u) => !u.startsWith(`${ORIGIN}/`) && !/^(data|blob|about):/.test(u));
+    assert.deepEqual(outside, []);
     assert.deepEqual(b.errors, []);
   } finally {
     await b.close();
