@@ -542,11 +542,13 @@ class Sketch {
     sv("line", { x1: bx, y1: by - 17, x2: bx, y2: by + 17, class: "bar" }, g);
     sv("line", { x1: bx, y1: by - 7, x2: bx + 30, y2: by - 30, class: "lead" }, g);
     sv("line", { x1: bx, y1: by + 7, x2: bx + 30, y2: by + 30, class: "lead" }, g);
-    // Emitter arrow: outward for NPN, inward for PNP.
-    const [ax, ay] = polarity === "pnp" ? [bx + 9, by + 14] : [bx + 25, by + 26];
-    const dir = polarity === "pnp" ? -1 : 1;
-    const ux = 0.79 * dir;
-    const uy = 0.61 * dir;
+    // Emitter arrow: NPN has its emitter at the bottom, arrow pointing out
+    // (away from the base); PNP is drawn the other way up, emitter on top,
+    // arrow pointing in (toward the base).
+    const pnp = polarity === "pnp";
+    const [ax, ay] = pnp ? [bx + 11, by - 15.5] : [bx + 25, by + 26];
+    const ux = pnp ? -0.79 : 0.79;
+    const uy = 0.61;
     const tip = [ax + ux * 5, ay + uy * 5];
     const back = [ax - ux * 5, ay - uy * 5];
     const p1 = [back[0] - uy * 4.5, back[1] + ux * 4.5];
@@ -555,6 +557,7 @@ class Sketch {
     sv("rect", { x: bx - 14, y: by - 32, width: 62, height: 64, class: "hit" }, g);
     const t = sv("text", { x: bx + 50, y: by + 4, class: "pname" }, g);
     t.textContent = polarity.toUpperCase();
+    if (pnp) return { c: [bx + 30, by + 30], e: [bx + 30, by - 30], b: [bx, by] };
     return { c: [bx + 30, by - 30], e: [bx + 30, by + 30], b: [bx, by] };
   }
 
@@ -627,6 +630,10 @@ function drawStage(stage, polarity, values, supplyText) {
   const BX = 290;
   const BY = 230;
   const CX = 320;
+  if (polarity === "pnp") {
+    drawPnpStage(k, stage, supplyText, { RAIL, BUS, BX, BY, CX });
+    return svg;
+  }
   if (stage === "common-base") {
     k.rail(240, CX, RAIL, supplyText);
     k.resistor("r1", "bias, supply to base", 240, RAIL, 240, BY, "right");
@@ -662,7 +669,7 @@ function drawStage(stage, polarity, values, supplyText) {
     return svg;
   }
   // Common emitter and common collector share the input side.
-  k.rail(240, CX, RAIL, supplyText);
+  k.rail(215, CX, RAIL, supplyText);
   k.wire([50, 324], [50, BY], [70, BY]);
   k.source(50, 340);
   k.wire([50, 356], [50, BUS]);
@@ -670,9 +677,9 @@ function drawStage(stage, polarity, values, supplyText) {
   k.wire([140, BY], [150, BY]);
   k.capacitor("c_in", "input coupling", 150, BY, 200, BY, "above");
   k.wire([200, BY], [BX, BY]);
-  k.dot(240, BY);
-  k.resistor("r1", "bias, supply to base", 240, RAIL, 240, BY, "right");
-  k.resistor("r2", "bias, base to ground", 240, BY, 240, BUS, "left");
+  k.dot(215, BY);
+  k.resistor("r1", "bias, supply to base", 215, RAIL, 215, BY, "right");
+  k.resistor("r2", "bias, base to ground", 215, BY, 215, BUS, "left");
   const q = k.transistor(BX, BY, polarity, "transistor");
   if (stage === "common-collector") {
     k.resistor("rc", "collector resistor (optional)", CX, RAIL, CX, q.c[1], "right");
@@ -686,7 +693,7 @@ function drawStage(stage, polarity, values, supplyText) {
     k.text(480, 288, "out", "note", "middle");
     k.resistor("rl", "load", 480, 300, 480, BUS, "right");
     k.ground(50, 480, BUS, 150);
-    k.nodeVoltage("vb", 234, BY - 8, "end");
+    k.nodeVoltage("vb", 221, BY + 20, "start");
     k.nodeVoltage("vc", CX - 8, 182, "end");
     k.nodeVoltage("ve", CX - 8, 318, "end");
     return svg;
@@ -707,10 +714,110 @@ function drawStage(stage, polarity, values, supplyText) {
   k.wire([CX, 330], [385, 330]);
   k.capacitor("c_emitter", "emitter bypass", 385, 330, 385, BUS, "right");
   k.ground(50, 480, BUS, 150);
-  k.nodeVoltage("vb", 234, BY - 8, "end");
+  k.nodeVoltage("vb", 221, BY + 20, "start");
   k.nodeVoltage("vc", CX - 8, 182, "end");
   k.nodeVoltage("ve", CX + 8, 292);
   return svg;
+}
+
+/** The PNP stages: the mirror image of the NPN ones on the same positive
+ * supply (core/src/stage.rs). The emitter resistance hangs from the supply
+ * rail down to the emitter (on top), `rc` runs from the collector (at the
+ * bottom) down to ground; `r1` stays supply to base, `r2` base to ground,
+ * and the source and load return to the ground bus. */
+function drawPnpStage(k, stage, supplyText, { RAIL, BUS, BX, BY, CX }) {
+  const EN = 160; // emitter node (below the emitter resistance)
+  const CN = 290; // collector node (above rc)
+  if (stage === "common-base") {
+    k.rail(240, CX, RAIL, supplyText);
+    k.resistor("r1", "bias, supply to base", 240, RAIL, 240, BY, "right");
+    k.resistor("r2", "bias, base to ground", 240, BY, 240, BUS, "right");
+    k.wire([240, BY], [190, BY]);
+    k.capacitor("c_base", "base decoupling", 190, BY, 190, BUS, "left");
+    k.dot(240, BY);
+    k.wire([240, BY], [BX, BY]);
+    const q = k.transistor(BX, BY, "pnp", "transistor");
+    // Input into the emitter, the source returning to ground at the right.
+    k.resistor("re", "emitter resistor", CX, RAIL, CX, EN, "left");
+    k.wire(q.e, [CX, EN]);
+    k.dot(CX, EN);
+    k.wire([CX, EN], [350, EN]);
+    k.capacitor("c_in", "input coupling", 350, EN, 400, EN, "above");
+    k.wire([400, EN], [410, EN]);
+    k.resistor("rs", "source resistance", 410, EN, 470, EN, "above");
+    k.wire([470, EN], [565, EN], [565, 324]);
+    k.source(565, 340);
+    k.wire([565, 356], [565, BUS]);
+    // Output from the collector.
+    k.wire(q.c, [CX, CN]);
+    k.dot(CX, CN);
+    k.resistor("rc", "collector resistor", CX, CN, CX, BUS, "right");
+    k.wire([CX, CN], [360, CN]);
+    k.capacitor("c_out", "output coupling", 360, CN, 410, CN, "above");
+    k.wire([410, CN], [470, CN]);
+    k.dot(470, CN);
+    k.text(470, CN - 12, "out", "note", "middle");
+    k.resistor("rl", "load", 470, CN, 470, BUS, "right");
+    k.ground(190, 565, BUS, 365);
+    k.nodeVoltage("vb", 236, BY - 8, "end");
+    k.nodeVoltage("ve", CX - 8, 182, "end");
+    k.nodeVoltage("vc", CX - 8, 282, "end");
+    return;
+  }
+  // Common emitter and common collector: the input side as for NPN.
+  k.rail(240, stage === "common-emitter" ? 445 : CX, RAIL, supplyText);
+  k.wire([50, 324], [50, BY], [70, BY]);
+  k.source(50, 340);
+  k.wire([50, 356], [50, BUS]);
+  k.resistor("rs", "source resistance", 70, BY, 140, BY, "above");
+  k.wire([140, BY], [150, BY]);
+  k.capacitor("c_in", "input coupling", 150, BY, 200, BY, "above");
+  k.wire([200, BY], [BX, BY]);
+  k.dot(240, BY);
+  k.resistor("r1", "bias, supply to base", 240, RAIL, 240, BY, "right");
+  k.resistor("r2", "bias, base to ground", 240, BY, 240, BUS, "left");
+  const q = k.transistor(BX, BY, "pnp", "transistor");
+  if (stage === "common-collector") {
+    // Output from the emitter; rc (optional) from the collector to ground.
+    k.resistor("re", "emitter resistor", CX, RAIL, CX, EN, "left");
+    k.wire(q.e, [CX, EN]);
+    k.dot(CX, EN);
+    k.wire([CX, EN], [360, EN]);
+    k.capacitor("c_out", "output coupling", 360, EN, 410, EN, "above");
+    k.wire([410, EN], [480, EN]);
+    k.dot(480, EN);
+    k.text(480, EN - 12, "out", "note", "middle");
+    k.resistor("rl", "load", 480, EN, 480, BUS, "right");
+    k.resistor("rc", "collector resistor (optional)", CX, q.c[1], CX, BUS, "right");
+    k.ground(50, 480, BUS, 150);
+    // Below the wire: above it, the label would run into c_in's value.
+    k.nodeVoltage("vb", 234, BY + 26, "end");
+    k.nodeVoltage("ve", CX - 8, 182, "end");
+    k.nodeVoltage("vc", CX - 8, 282, "end");
+    return;
+  }
+  // Common emitter: re_bypassed (c_emitter across it) from the rail, then re
+  // down to the emitter; output from the collector, rc to ground.
+  const EB = 120; // between re_bypassed and re
+  k.resistor("re_bypassed", "emitter resistor, bypassed", CX, RAIL, CX, EB, "right");
+  k.dot(CX, EB);
+  k.wire([CX, EB], [445, EB]);
+  k.capacitor("c_emitter", "emitter bypass", 445, RAIL, 445, EB, "right");
+  k.resistor("re", "emitter resistor, unbypassed", CX, EB, CX, 170, "right");
+  k.wire([CX, 170], q.e);
+  k.wire(q.c, [CX, CN]);
+  k.dot(CX, CN);
+  k.resistor("rc", "collector resistor", CX, CN, CX, BUS, "right");
+  k.wire([CX, CN], [360, CN]);
+  k.capacitor("c_out", "output coupling", 360, CN, 410, CN, "above");
+  k.wire([410, CN], [480, CN]);
+  k.dot(480, CN);
+  k.text(480, CN - 12, "out", "note", "middle");
+  k.resistor("rl", "load", 480, CN, 480, BUS, "right");
+  k.ground(50, 480, BUS, 150);
+  k.nodeVoltage("vb", 234, BY + 26, "end");
+  k.nodeVoltage("ve", CX + 8, 190);
+  k.nodeVoltage("vc", CX - 8, 282, "end");
 }
 
 /* ------------------------------------------------------------------ */
