@@ -427,14 +427,17 @@ fn lu_solve(
     b1: &mut [Complex64; M],
     b2: &mut [Complex64; M],
 ) -> Option<()> {
-    // Scale for the singularity test: the largest entry.
+    // Scale for the singularity test: the largest diagonal entry (every
+    // node of a valid stage has its own conductance to somewhere).
     let mut scale = 0.0f64;
-    for row in a.iter().take(n) {
-        for v in row.iter().take(n) {
-            scale = scale.max(v.norm_sqr());
-        }
+    for (k, row) in a.iter().enumerate().take(n) {
+        scale = scale.max(row[k].norm_sqr());
     }
     let tiny = scale * 1e-60;
+    // Non-zero columns right of the diagonal in each row of U, for the back substitution.
+    let mut ucols = [[0usize; M]; M];
+    let mut unc = [0usize; M];
+    let mut pivot_inverse = [Complex64::new(0.0, 0.0); M];
     for k in 0..n {
         let mut p = k;
         let mut best = a[k][k].norm_sqr();
@@ -454,9 +457,10 @@ fn lu_solve(
             b2.swap(p, k);
         }
         let inv = Complex64::new(1.0, 0.0) / a[k][k];
+        pivot_inverse[k] = inv;
         // The network is sparse (a node touches two to four others): update
         // only the columns where the pivot row is non-zero.
-        let mut cols = [0usize; M];
+        let cols = &mut ucols[k];
         let mut nc = 0;
         for (j, v) in a[k].iter().enumerate().take(n).skip(k + 1) {
             if v.re != 0.0 || v.im != 0.0 {
@@ -464,6 +468,7 @@ fn lu_solve(
                 nc += 1;
             }
         }
+        unc[k] = nc;
         let pivot_row = a[k];
         let (t1, t2) = (b1[k], b2[k]);
         for i in (k + 1)..n {
@@ -481,11 +486,11 @@ fn lu_solve(
     for k in (0..n).rev() {
         let mut s1 = b1[k];
         let mut s2 = b2[k];
-        for j in (k + 1)..n {
+        for &j in &ucols[k][..unc[k]] {
             s1 -= a[k][j] * b1[j];
             s2 -= a[k][j] * b2[j];
         }
-        let inv = Complex64::new(1.0, 0.0) / a[k][k];
+        let inv = pivot_inverse[k];
         b1[k] = s1 * inv;
         b2[k] = s2 * inv;
     }
