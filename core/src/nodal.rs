@@ -469,16 +469,19 @@ fn lu_solve(
             }
         }
         unc[k] = nc;
-        let pivot_row = a[k];
         let (t1, t2) = (b1[k], b2[k]);
-        for i in (k + 1)..n {
-            let f = a[i][k] * inv;
-            if f.re == 0.0 && f.im == 0.0 {
+        let (upper, lower) = a.split_at_mut(k + 1);
+        let pivot_row = &upper[k];
+        for (offset, row) in lower.iter_mut().take(n - k - 1).enumerate() {
+            let below = row[k];
+            if below.re == 0.0 && below.im == 0.0 {
                 continue;
             }
+            let f = below * inv;
             for &j in &cols[..nc] {
-                a[i][j] -= f * pivot_row[j];
+                row[j] -= f * pivot_row[j];
             }
+            let i = k + 1 + offset;
             b1[i] -= f * t1;
             b2[i] -= f * t2;
         }
