@@ -1727,34 +1727,11 @@ fn percentile(sorted: &[f64], p: f64) -> f64 {
     lo + frac * (sorted[k + 1] - lo)
 }
 
-/// Sorts `v` ascending (by `f64::total_cmp`) in place: a heapsort, a few
-/// hundred bytes of code where the standard library's sorts and selection
-/// would add kilobytes to the page's wasm, and O(n log n) at any input.
+/// Sorts `v` ascending (by `f64::total_cmp`) in place. The standard
+/// library's unstable sort: the designer page has room for its code, and it
+/// is several times faster than a hand-written heapsort on 10 000 samples.
 fn sort_ascending(v: &mut [f64]) {
-    fn sift_down(v: &mut [f64], mut root: usize, end: usize) {
-        loop {
-            let mut child = 2 * root + 1;
-            if child >= end {
-                return;
-            }
-            if child + 1 < end && v[child].total_cmp(&v[child + 1]).is_lt() {
-                child += 1;
-            }
-            if v[root].total_cmp(&v[child]).is_ge() {
-                return;
-            }
-            v.swap(root, child);
-            root = child;
-        }
-    }
-    let n = v.len();
-    for start in (0..n / 2).rev() {
-        sift_down(v, start, n);
-    }
-    for end in (1..n).rev() {
-        v.swap(0, end);
-        sift_down(v, 0, end);
-    }
+    v.sort_unstable_by(f64::total_cmp);
 }
 
 fn distribution(q: Quantity, v: &mut [f64]) -> Option<Distribution> {
