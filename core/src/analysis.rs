@@ -7,7 +7,9 @@ use crate::error::Result;
 use crate::hybrid_pi::SmallSignal;
 use crate::midband::Midband;
 use crate::operating_point::OperatingPoint;
-use crate::ratings::{cautions, rating_checks, BiasStability, Caution, Check, Dissipation};
+use crate::ratings::{
+    cautions, passband_caution, rating_checks, BiasStability, Caution, Check, Dissipation,
+};
 use crate::response::{Bandwidth, Response};
 use crate::stage::Stage;
 use crate::swing::Swing;
@@ -88,7 +90,8 @@ pub fn analyze_with(stage: &Stage, options: &Options) -> Result<Analysis> {
     } else {
         None
     };
-    let cautions = cautions(stage, &op, &ratings, &dissipation, stability.as_ref());
+    let mut cautions = cautions(stage, &op, &ratings, &dissipation, stability.as_ref());
+    cautions.extend(passband_caution(&bandwidth));
     Ok(Analysis {
         operating_point: op,
         small_signal: ss,

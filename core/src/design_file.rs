@@ -130,6 +130,7 @@ use serde_json::{Map, Value};
 
 use crate::analysis::{analyze, Analysis};
 use crate::constants::Temperature;
+use crate::document::{self, echo, path};
 use crate::error::{non_negative, positive, Error, ErrorKind, Result};
 use crate::presets::preset;
 #[cfg(doc)]
@@ -446,13 +447,10 @@ impl DesignDocument {
     /// names the nearest known key; a value of the wrong JSON type names
     /// its key.
     pub fn from_json(text: &str) -> Result<DesignDocument> {
-        if text.trim().is_empty() {
-            return Err(Error::missing(
-                "format",
-                "the file is empty; a design file is a JSON object that starts with { \"format\": \"stagewright/1\", ...",
-            ));
-        }
-        let value: Value = serde_json::from_str(text).map_err(|e| json_error(text, &e))?;
+        let value = document::parse(
+            text,
+            "the file is empty; a design file is a JSON object that starts with { \"format\": \"stagewright/1\", ...",
+        )?;
         DesignDocument::from_value(&value)
     }
 
@@ -476,8 +474,8 @@ impl DesignDocument {
         let schema = &DESIGN_SCHEMA;
         Ok(DesignDocument {
             format,
-            title: text_at(map, "", "title")?,
-            notes: text_at(map, "", "notes")?,
+            title: free_text(map, "title", MAX_TITLE)?,
+            notes: free_text(map, "notes", MAX_NOTES)?,
             stage: text_at(map, "", "stage")?,
             supply: typed_at(map, "", "supply")?,
             ambient: typed_at(map, "", "ambient")?,
@@ -706,87 +704,11 @@ impl TryFrom<DesignDocument> for Design {
 // ---------------------------------------------------------------------------
 // Reading the raw JSON.
 
-/// The error for a JSON syntax problem: the line and column, the line as
-/// typed, and what was expected there.
-pub(crate) fn json_error(text: &str, e: &serde_json::Error) -> Error {
-    let line = e.line();
-    let message = e.to_string();
-    let expected = if e.is_eof() {
-        "the rest of the document: it ends too early (a closing } or ] or a quote is missing)"
-    } else if message.contains("trailing comma") {
-        "no comma after the last entry of an object or list"
-    } else if message.contains("key must be a string") {
-        "a key in double quotes, such as \"rc\""
-    } else if message.contains("expected `,` or `}`") || message.contains("expected `,` or `]`") {
-        "a comma between entries; a value with a prefix or unit is text and needs double quotes, such as \"4k7\""
-    } else if message.contains("expected `:`") {
-        "a colon between a key and its value, such as \"rc\": \"4k7\""
-    } else if message.contains("invalid number") || message.contains("number out of range") {
-        "a JSON number such as 4700 or 4.7e3; write prefixed values as text in double quotes, such as \"4k7\""
-    } else if message.contains("expected value") || message.contains("expected ident") {
-        "a value: a number such as 4700, text in double quotes such as \"4k7\", true, false, null, an object { } or a list [ ]"
-    } else {
-        "valid JSON: keys and text in double quotes, a comma between entries and none after the last"
-    };
-    // The text around the error as typed (the last non-empty line when the
-    // text ends early), at most 20 characters before the column and 30 after.
-    let (shown, column) = match text.lines().nth(line.saturating_sub(1)) {
-        Some(l) if !l.trim().is_empty() => (l, e.column()),
-        _ => {
-            let l = text
-                .lines()
-                .rev()
-                .find(|l| !l.trim().is_empty())
-                .unwrap_or("");
-            (l, l.len())
-        }
-    };
-    let chars: Vec<(usize, char)> = shown.char_indices().collect();
-    let at = chars
-        .iter()
-        .position(|&(i, _)| i + 1 >= column)
-        .unwrap_or(chars.len());
-    let start = at.saturating_sub(20);
-    let end = (at + 30).min(chars.len());
-    let mut excerpt = String::new();
-    if chars[..start].iter().any(|(_, c)| !c.is_whitespace()) {
-        excerpt.push('…');
-    }
-    excerpt.extend(chars[start..end].iter().map(|&(_, c)| c));
-    let trimmed_start = excerpt.trim_start().len();
-    let mut excerpt = excerpt.split_off(excerpt.len() - trimmed_start);
-    if end < chars.len() {
-        excerpt.push('…');
-    }
-    let mut field = String::new();
-    let _ = write!(field, "line {}, column {}", line, e.column());
-    Error::new(
-        field,
-        ErrorKind::Parse {
-            text: excerpt,
-            expected,
-        },
-    )
-}
-
-/// `prefix.key`, or `key` at the top level.
-fn path(prefix: &str, key: &str) -> String {
-    if prefix.is_empty() {
-        key.to_owned()
-    } else {
-        [prefix, ".", key].concat()
-    }
-}
-
 /// A short rendering of a JSON value for an error message.
 fn shown(value: &Value) -> String {
-    let text = value.to_string();
-    if text.chars().count() > 40 {
-        let mut t: String = text.chars().take(40).collect();
-        t.push('…');
-        t
-    } else {
-        text
+    match value {
+        Value::String(s) => echo(&["\"", s, "\""].concat()),
+        other => echo(&other.to_string()),
     }
 }
 
@@ -814,6 +736,30 @@ pub(crate) fn text_at(map: &Map<String, Value>, prefix: &str, key: &str) -> Resu
         Some(Value::String(s)) => Ok(Some(s.clone())),
         Some(other) => Err(parse_error(&path(prefix, key), other, EXPECTED_TEXT)),
     }
+}
+
+/// Longest title, in characters.
+pub const MAX_TITLE: usize = 200;
+/// Longest notes, in characters (about ten pages of text).
+pub const MAX_NOTES: usize = 20_000;
+
+/// The free text of the top-level `key` (title, notes), at most `max`
+/// characters: a page lays it out on every edit, and a megabyte of text
+/// would stall it.
+pub(crate) fn free_text(map: &Map<String, Value>, key: &str, max: usize) -> Result<Option<String>> {
+    let text = text_at(map, "", key)?;
+    if let Some(t) = &text {
+        let n = t.chars().count();
+        if n > max {
+            let mut reason = String::new();
+            let _ = write!(
+                reason,
+                "{n} characters is too long; at most {max} are kept in a design file (put longer documents beside it and link them)"
+            );
+            return Err(Error::new(key, ErrorKind::Document { reason }));
+        }
+    }
+    Ok(text)
 }
 
 /// The typed value of `key` in `map`, if given.
@@ -891,10 +837,21 @@ impl Schema {
     /// `prefix` does not know.
     pub(crate) fn check_keys(&self, map: &Map<String, Value>, prefix: &str) -> Result<()> {
         for key in map.keys() {
+            if key.trim().is_empty() {
+                let mut reason = String::from("a key is empty (\"\")");
+                reason.push_str(if prefix.is_empty() {
+                    " at the top level of the file"
+                } else {
+                    " in this block"
+                });
+                reason.push_str("; every key is a name such as \"supply\" or \"rc\"");
+                let field = if prefix.is_empty() { "file" } else { prefix };
+                return Err(Error::new(field, ErrorKind::Document { reason }));
+            }
             let known = self.all().any(|p| parent(p) == prefix && leaf(p) == key);
             if !known {
                 return Err(Error::new(
-                    path(prefix, key),
+                    path(prefix, &echo(key)),
                     ErrorKind::UnknownKey {
                         suggestion: self.suggest(prefix, key),
                     },
@@ -908,6 +865,12 @@ impl Schema {
     /// the same name in another block, a known alias, the closest name by
     /// edit distance, or a name that holds every word of the key.
     fn suggest(&self, prefix: &str, key: &str) -> Option<&'static str> {
+        // No known key is longer than about 30 characters; a key of more
+        // than 64 is not a typo of one, and comparing it would cost time
+        // and memory in proportion to its length.
+        if key.len() > 64 {
+            return None;
+        }
         let lower = key.trim().to_ascii_lowercase().replace(['-', ' '], "_");
         let here = || self.all().filter(move |p| parent(p) == prefix);
         // Another spelling of a key of this block (case, dashes).

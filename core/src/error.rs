@@ -75,6 +75,12 @@ pub enum ErrorKind {
         /// What is wrong and how to fix it.
         reason: String,
     },
+    /// A document whose structure the format refuses: a key given twice,
+    /// an empty key, nesting too deep, text too long.
+    Document {
+        /// What is wrong and how to fix it.
+        reason: String,
+    },
 }
 
 impl Error {
@@ -194,7 +200,9 @@ impl fmt::Display for Error {
                 "{field}: the operating point did not converge after {iterations} iterations \
                  (residual {residual:.3e} V); check that the bias network can turn the transistor on"
             ),
-            ErrorKind::Inconsistent { reason } => write!(f, "{field}: {reason}"),
+            ErrorKind::Inconsistent { reason } | ErrorKind::Document { reason } => {
+                write!(f, "{field}: {reason}")
+            }
         }
     }
 }

@@ -76,6 +76,8 @@ mod analysis;
 mod constants;
 #[cfg(feature = "serde")]
 mod design_file;
+#[cfg(feature = "serde")]
+mod document;
 mod error;
 mod eseries;
 mod format;
@@ -107,8 +109,11 @@ pub use constants::{
 #[cfg(feature = "serde")]
 pub use design_file::{
     Design, DesignDocument, PartsDocument, RequirementsDocument, TolerancesDocument,
-    TransistorDocument, Typed, DEFAULT_AMBIENT_CELSIUS, DESIGN_FORMAT, DESIGN_FORMATS,
+    TransistorDocument, Typed, DEFAULT_AMBIENT_CELSIUS, DESIGN_FORMAT, DESIGN_FORMATS, MAX_NOTES,
+    MAX_TITLE,
 };
+#[cfg(feature = "serde")]
+pub use document::{MAX_DEPTH, MAX_ECHO};
 pub use error::{Error, ErrorKind, Result};
 pub use eseries::{ESeries, SeriesLookup};
 pub use format::{format_si, format_value};
@@ -125,13 +130,16 @@ pub use ratings::{
 #[cfg(feature = "serde")]
 pub use report::{Report, SweepRow, SweepTable, REPORT_FORMAT, SWEEP_FORMAT};
 pub use requirements::Requirements;
-pub use response::{log_frequencies, Bandwidth, Response, SEARCH_FROM, SEARCH_TO};
+pub use response::{log_frequencies, Bandwidth, Edge, Response, SEARCH_FROM, SEARCH_TO};
 #[cfg(feature = "serde")]
 pub use spec_file::{
     BiasDocument, BiasPointDocument, DesignResult, PartEntry, PinnedPartsDocument, SeriesDocument,
     SpecDocument, SpecFile, DESIGN_RESULT_FORMAT, SPEC_FORMAT, SPEC_FORMATS,
 };
-pub use stage::{Parts, Stage, StageKind, DEFAULT_RESISTOR_RATING, MAX_SUPPLY};
+pub use stage::{
+    Parts, Stage, StageKind, DEFAULT_RESISTOR_RATING, MAX_CAPACITANCE, MAX_RESISTANCE, MAX_SUPPLY,
+    MIN_CAPACITANCE, MIN_RESISTANCE, MIN_SUPPLY,
+};
 pub use swing::Swing;
 pub use synthesis::{
     synthesize, Bias, Difference, PartChoice, PinnedParts, Series, Spec, Synthesis, Target,
@@ -141,6 +149,7 @@ pub use tolerance::{
     sensitivity, tolerance_analysis, worst_case, worst_checks, Corner, Distribution, Extreme,
     Histogram, Level, MonteCarlo, MonteCarloSummary, Parameter, Quantity, RequirementYield,
     Sensitivity, Setting, ToleranceReport, Tolerances, WorstCase, WorstCheck, DEFAULT_TRIALS,
+    MAX_TRIALS,
 };
 pub use transistor::{
     Currents, Device, Polarity, TransistorData, CJC_BUILT_IN, CJC_GRADING, DEFAULT_BETA_REVERSE,

@@ -203,12 +203,12 @@ impl AcNetwork {
         };
         // Source, bias network, rbb', load: common to all stages.
         k.resistor(SRC, IN, p.rs);
-        if let Some(r) = p.r1 {
-            k.resistor(B, GND, r);
-        }
-        if let Some(r) = p.r2 {
-            k.resistor(B, GND, r);
-        }
+        // Both bias resistors run from the base to AC ground: one
+        // conductance, g1 + g2, whose sum does not depend on the order of
+        // the parts (so a PNP stage, whose r1 and r2 swap roles, rounds
+        // exactly as its NPN mirror image).
+        let g_bias = p.r1.map_or(0.0, |r| 1.0 / r) + p.r2.map_or(0.0, |r| 1.0 / r);
+        k.push(Part::Conductance(B, GND, g_bias));
         k.resistor(B, BI, ss.rbb);
         k.resistor(OUT, GND, p.rl);
         if band == Band::Full {

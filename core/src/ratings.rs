@@ -248,6 +248,21 @@ pub struct BiasStability {
     pub over_temperature: f64,
 }
 
+/// The caution for a stage whose response never comes within 3 dB of its
+/// midband gain ([`crate::Edge::NoPassband`]), if that is the case.
+pub(crate) fn passband_caution(b: &crate::response::Bandwidth) -> Option<Caution> {
+    (b.low_edge == crate::response::Edge::NoPassband).then(|| Caution {
+        id: "no-passband".into(),
+        message: format!(
+            "The response never comes within 3 dB of the midband gain: its peak is {} below it, at {}. \
+             The midband gains and impedances describe a band this stage does not have; a coupling or bypass \
+             capacitor is far too small for the frequencies the stage must pass.",
+            format_si(-crate::nodal::db20(b.peak_ratio), "dB"),
+            format_si(b.peak_frequency, "Hz")
+        ),
+    })
+}
+
 /// The cautions for a solved stage.
 pub fn cautions(
     stage: &Stage,

@@ -55,6 +55,10 @@
 //! | `bandwidth.f_high` | Hz | upper −3 dB corner, or `null` |
 //! | `bandwidth.f_unity_current_gain` | Hz | where \|current gain\| falls to 1, or `null` |
 //! | `bandwidth.f_unity_power_gain` | Hz | where \|power gain\| falls to 1, or `null` |
+//! | `bandwidth.low_edge` | | how the lower-corner search ended: `corner`, `none` (the gain holds to DC), `beyond-search` (below 1 mHz), `no-passband` |
+//! | `bandwidth.high_edge` | | the same for the upper corner (`beyond-search`: above 1 THz) |
+//! | `bandwidth.peak_db` | dB | the largest \|V(load)/EMF\| over 1 mHz to 1 THz relative to its midband value (about 0; below −3 dB when there is no passband) |
+//! | `bandwidth.peak_frequency` | Hz | where that largest response is |
 //! | `swing.positive` | V | largest positive peak at the load before clipping |
 //! | `swing.negative` | V | largest negative peak, as a magnitude |
 //! | `swing.symmetric` | V | the smaller of the two |
@@ -103,6 +107,7 @@ use crate::error::Result;
 use crate::format::format_si;
 use crate::nodal::db20;
 use crate::ratings::{Check, DEFERRAL};
+use crate::response::{SEARCH_FROM, SEARCH_TO};
 
 /// The format name and version of the report: `stagewright-report/1`.
 pub const REPORT_FORMAT: &str = "stagewright-report/1";
@@ -185,6 +190,10 @@ struct BandwidthSection {
     f_high: Option<f64>,
     f_unity_current_gain: Option<f64>,
     f_unity_power_gain: Option<f64>,
+    low_edge: &'static str,
+    high_edge: &'static str,
+    peak_db: f64,
+    peak_frequency: f64,
 }
 
 #[derive(Debug, Clone, Serialize)]
@@ -315,6 +324,10 @@ impl Report {
                 f_high: a.bandwidth.f_high,
                 f_unity_current_gain: a.bandwidth.f_unity_current_gain,
                 f_unity_power_gain: a.bandwidth.f_unity_power_gain,
+                low_edge: a.bandwidth.low_edge.name(),
+                high_edge: a.bandwidth.high_edge.name(),
+                peak_db: db20(a.bandwidth.peak_ratio),
+                peak_frequency: a.bandwidth.peak_frequency,
             },
             swing: SwingSection {
                 positive: a.swing.positive,
@@ -522,18 +535,34 @@ impl Report {
         let b = &self.bandwidth;
         head(&mut o, "Bandwidth", "−3 dB of the gain from the source");
         let freq = |f: Option<f64>| f.map_or_else(|| "none".to_owned(), |f| format_si(f, "Hz"));
-        row(
-            &mut o,
-            "lower corner",
-            "f_low",
-            &freq(b.f_low),
-            if b.f_low.is_none() {
-                "no coupling capacitor limits it"
-            } else {
-                ""
-            },
-        );
-        row(&mut o, "upper corner", "f_high", &freq(b.f_high), "");
+        let (low, low_note) = match b.low_edge {
+            "none" => ("none".to_owned(), "the gain holds to DC"),
+            "beyond-search" => (
+                ["below ", &format_si(SEARCH_FROM, "Hz")].concat(),
+                "beyond the search range",
+            ),
+            "no-passband" => ("none".to_owned(), "no passband: see the cautions"),
+            _ => (freq(b.f_low), ""),
+        };
+        row(&mut o, "lower corner", "f_low", &low, low_note);
+        let (high, high_note) = match b.high_edge {
+            "beyond-search" => (
+                ["above ", &format_si(SEARCH_TO, "Hz")].concat(),
+                "beyond the search range",
+            ),
+            "no-passband" => ("none".to_owned(), "no passband: see the cautions"),
+            _ => (freq(b.f_high), ""),
+        };
+        row(&mut o, "upper corner", "f_high", &high, high_note);
+        if b.low_edge == "no-passband" {
+            row(
+                &mut o,
+                "largest response",
+                "",
+                &format_si(b.peak_db, "dB"),
+                &["re midband, at ", &format_si(b.peak_frequency, "Hz")].concat(),
+            );
+        }
         row(
             &mut o,
             "unity current gain",

@@ -7,9 +7,10 @@
 use alloc::vec::Vec;
 
 use crate::analysis::Analysis;
+use crate::format::format_si;
 use crate::nodal::db20;
 use crate::ratings::Check;
-use crate::response::SEARCH_TO;
+use crate::response::{Bandwidth, Edge, Side, SEARCH_FROM, SEARCH_TO};
 
 /// The requirements block of a design, SI units (temperatures in °C).
 #[derive(Debug, Clone, Copy, PartialEq, Default)]
@@ -89,15 +90,26 @@ impl Requirements {
                 "V",
             ));
         }
+        let b = &a.bandwidth;
         if let Some(l) = self.max_f_low {
-            // No lower corner (ideal coupling) counts as 0 Hz.
-            let v = a.bandwidth.f_low.unwrap_or(0.0);
-            out.push(Check::at_most("max_f_low", "lower corner", v, l, "Hz"));
+            out.push(corner_check(
+                Side::Lower,
+                "lower corner",
+                b.low_edge,
+                b.f_low,
+                l,
+                b,
+            ));
         }
         if let Some(l) = self.min_f_high {
-            // No upper corner inside the search range counts as its top.
-            let v = a.bandwidth.f_high.unwrap_or(SEARCH_TO);
-            out.push(Check::at_least("min_f_high", "upper corner", v, l, "Hz"));
+            out.push(corner_check(
+                Side::Upper,
+                "upper corner",
+                b.high_edge,
+                b.f_high,
+                l,
+                b,
+            ));
         }
         if let Some(l) = self.max_supply_current {
             out.push(Check::at_most(
@@ -118,5 +130,108 @@ impl Requirements {
             ));
         }
         out
+    }
+}
+
+/// Whether a corner requirement is met, from how the corner search ended:
+///
+/// - a corner found is compared with the limit;
+/// - no lower corner ([`Edge::None`]: the gain holds to DC) meets any
+///   `max_f_low`;
+/// - a corner beyond the search range is known only to lie beyond it: the
+///   requirement is met when that bound already meets it (a lower corner
+///   below 1 mHz meets a `max_f_low` of 1 mHz or more), and fails when it
+///   cannot be told;
+/// - no passband, or no search, fails: the band the figures describe is not
+///   there, or was not looked for.
+pub(crate) fn corner_met(side: Side, edge: Edge, f: Option<f64>, limit: f64) -> bool {
+    match (edge, f) {
+        (Edge::Corner, Some(f)) => match side {
+            Side::Lower => f <= limit,
+            Side::Upper => f >= limit,
+        },
+        (Edge::None, _) => side == Side::Lower,
+        (Edge::BeyondSearch, _) => match side {
+            Side::Lower => SEARCH_FROM <= limit,
+            Side::Upper => SEARCH_TO >= limit,
+        },
+        _ => false,
+    }
+}
+
+/// The check of a corner requirement (`max_f_low` for [`Side::Lower`],
+/// `min_f_high` for [`Side::Upper`]) with the rules of [`corner_met`]; the
+/// message says what was found. `what` names the corner ("lower corner",
+/// "worst-case lower corner"); `band` gives the peak when there is no
+/// passband.
+pub(crate) fn corner_check(
+    side: Side,
+    what: &str,
+    edge: Edge,
+    f: Option<f64>,
+    limit: f64,
+    band: &Bandwidth,
+) -> Check {
+    let (id, bound) = match side {
+        Side::Lower => ("max_f_low", "at most"),
+        Side::Upper => ("min_f_high", "at least"),
+    };
+    if let (Edge::Corner, Some(f)) = (edge, f) {
+        return match side {
+            Side::Lower => Check::at_most(id, what, f, limit, "Hz"),
+            Side::Upper => Check::at_least(id, what, f, limit, "Hz"),
+        };
+    }
+    let pass = corner_met(side, edge, f, limit);
+    let hz = |x: f64| format_si(x, "Hz");
+    let end = match side {
+        Side::Lower => SEARCH_FROM,
+        Side::Upper => SEARCH_TO,
+    };
+    let (value, message) = match edge {
+        Edge::None => (
+            0.0,
+            alloc::format!("{what}: none, the gain holds to DC (required {bound} {})", hz(limit)),
+        ),
+        Edge::BeyondSearch => {
+            let place = match side {
+                Side::Lower => "below",
+                Side::Upper => "above",
+            };
+            let verdict = if pass {
+                "which meets"
+            } else {
+                "so it cannot be shown to meet"
+            };
+            (
+                end,
+                alloc::format!(
+                    "{what}: {place} {}, where the search ends, {verdict} the required {bound} {}",
+                    hz(end),
+                    hz(limit)
+                ),
+            )
+        }
+        Edge::NotSearched => (
+            0.0,
+            alloc::format!("{what}: not searched, so the required {bound} {} is not shown", hz(limit)),
+        ),
+        Edge::Corner | Edge::NoPassband => (
+            band.peak_frequency,
+            alloc::format!(
+                "{what}: none, the response never comes within 3 dB of the midband gain (its peak, {} below midband, is at {}); the stage has no passband, so the required {bound} {} is not met",
+                format_si(-crate::nodal::db20(band.peak_ratio), "dB"),
+                hz(band.peak_frequency),
+                hz(limit)
+            ),
+        ),
+    };
+    Check {
+        id: id.into(),
+        pass,
+        value,
+        limit,
+        unit: "Hz",
+        message,
     }
 }

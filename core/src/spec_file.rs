@@ -91,9 +91,10 @@ use serde_json::Value;
 use crate::constants::Temperature;
 use crate::design_file::DesignDocument;
 use crate::design_file::{
-    block, json_error, object, optional, parse_error, required, requirements_from, share,
+    block, free_text, object, optional, parse_error, required, requirements_from, share,
     stage_kind, text_at, transistor_from, typed_at, Design, RequirementsDocument, Schema,
-    TransistorDocument, Typed, DEFAULT_AMBIENT_CELSIUS, DESIGN_FORMATS, EXPECTED_TEXT,
+    TransistorDocument, Typed, DEFAULT_AMBIENT_CELSIUS, DESIGN_FORMATS, EXPECTED_TEXT, MAX_NOTES,
+    MAX_TITLE,
 };
 use crate::error::{Error, ErrorKind, Result};
 use crate::eseries::ESeries;
@@ -335,13 +336,10 @@ impl SpecDocument {
     /// design file to `stagewright analyze`); an unknown key names the
     /// nearest known key; a value of the wrong JSON type names its key.
     pub fn from_json(text: &str) -> Result<SpecDocument> {
-        if text.trim().is_empty() {
-            return Err(Error::missing(
-                "format",
-                "the file is empty; a specification is a JSON object that starts with { \"format\": \"stagewright-spec/1\", ...",
-            ));
-        }
-        let value: Value = serde_json::from_str(text).map_err(|e| json_error(text, &e))?;
+        let value = crate::document::parse(
+            text,
+            "the file is empty; a specification is a JSON object that starts with { \"format\": \"stagewright-spec/1\", ...",
+        )?;
         SpecDocument::from_value(&value)
     }
 
@@ -372,8 +370,8 @@ impl SpecDocument {
         };
         Ok(SpecDocument {
             format,
-            title: text_at(map, "", "title")?,
-            notes: text_at(map, "", "notes")?,
+            title: free_text(map, "title", MAX_TITLE)?,
+            notes: free_text(map, "notes", MAX_NOTES)?,
             stage: text_at(map, "", "stage")?,
             supply: typed_at(map, "", "supply")?,
             ambient: typed_at(map, "", "ambient")?,

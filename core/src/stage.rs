@@ -17,6 +17,7 @@
 
 use crate::constants::Temperature;
 use crate::error::{non_negative, positive, within, Error, ErrorKind, Result};
+use crate::format::format_si;
 use crate::transistor::TransistorData;
 
 /// Which terminal is common to input and output.
@@ -132,10 +133,21 @@ pub struct Stage {
 
 /// Largest supply accepted, V.
 pub const MAX_SUPPLY: f64 = 1000.0;
+/// Smallest supply accepted, V (below it no silicon junction turns on).
+pub const MIN_SUPPLY: f64 = 0.1;
 /// Largest resistance accepted, Ω (an open part is left out instead).
 pub const MAX_RESISTANCE: f64 = 1e12;
+/// Smallest resistance accepted other than 0 Ω (a short), Ω: below a
+/// milliohm a part is a wire, and its conductance (10³ S and more) beside
+/// the stage's microsiemens would only add rounding to the solve.
+pub const MIN_RESISTANCE: f64 = 1e-3;
 /// Largest capacitance accepted, F.
 pub const MAX_CAPACITANCE: f64 = 10.0;
+/// Smallest capacitance accepted, F (a femtofarad is less than the stray
+/// capacitance of any real part; an ideal capacitor is left out instead).
+pub const MIN_CAPACITANCE: f64 = 1e-15;
+/// Range of a resistor's power rating, W.
+pub const RESISTOR_RATING_RANGE: (f64, f64) = (1e-3, 1000.0);
 
 fn not_applicable(field: &str, stage: StageKind, reason: &'static str) -> Error {
     Error::new(
@@ -147,15 +159,36 @@ fn not_applicable(field: &str, stage: StageKind, reason: &'static str) -> Error 
     )
 }
 
-fn resistor(field: &str, value: f64) -> Result<()> {
+/// A resistance of 0 Ω (a short, where the stage allows one) or from
+/// [`MIN_RESISTANCE`] to [`MAX_RESISTANCE`].
+pub(crate) fn resistor(field: &str, value: f64) -> Result<()> {
     non_negative(field, value, "Ω")?;
-    within(field, value, 0.0, MAX_RESISTANCE, "Ω").map(|_| ())
+    if value == 0.0 || (MIN_RESISTANCE..=MAX_RESISTANCE).contains(&value) {
+        Ok(())
+    } else {
+        Err(Error::out_of_range(
+            field,
+            value,
+            "Ω",
+            alloc::format!(
+                "0 Ω (a short) or between {} and {}",
+                format_si(MIN_RESISTANCE, "Ω"),
+                format_si(MAX_RESISTANCE, "Ω")
+            ),
+        ))
+    }
+}
+
+/// A resistance that must be there: from [`MIN_RESISTANCE`] to [`MAX_RESISTANCE`].
+fn resistor_present(field: &str, value: f64) -> Result<()> {
+    positive(field, value, "Ω")?;
+    within(field, value, MIN_RESISTANCE, MAX_RESISTANCE, "Ω").map(|_| ())
 }
 
 fn capacitor(field: &str, value: Option<f64>) -> Result<()> {
     if let Some(c) = value {
         positive(field, c, "F")?;
-        within(field, c, 0.0, MAX_CAPACITANCE, "F")?;
+        within(field, c, MIN_CAPACITANCE, MAX_CAPACITANCE, "F")?;
     }
     Ok(())
 }
@@ -166,8 +199,8 @@ impl Stage {
     pub fn validate(&self) -> Result<()> {
         let kind = self.kind;
         let p = &self.parts;
-        within("supply", self.supply, 0.0, MAX_SUPPLY, "V")?;
         positive("supply", self.supply, "V")?;
+        within("supply", self.supply, MIN_SUPPLY, MAX_SUPPLY, "V")?;
         within("ambient", self.ambient.celsius(), -60.0, 200.0, "°C")?;
         self.transistor
             .validate()
@@ -184,8 +217,7 @@ impl Stage {
         }
         for (name, v) in [("r1", p.r1), ("r2", p.r2)] {
             if let Some(r) = v {
-                positive(name, r, "Ω")?;
-                resistor(name, r)?;
+                resistor_present(name, r)?;
             }
         }
         if p.r1.is_none() && p.r2.is_none() {
@@ -198,14 +230,14 @@ impl Stage {
         resistor("re", p.re)?;
         resistor("re_bypassed", p.re_bypassed)?;
         resistor("rs", p.rs)?;
-        positive("rl", p.rl, "Ω")?;
-        resistor("rl", p.rl)?;
+        resistor_present("rl", p.rl)?;
         capacitor("c_in", p.c_in)?;
         capacitor("c_out", p.c_out)?;
         capacitor("c_emitter", p.c_emitter)?;
         capacitor("c_base", p.c_base)?;
         positive("resistor_rating", p.resistor_rating, "W")?;
-        within("resistor_rating", p.resistor_rating, 0.0, 1000.0, "W")?;
+        let (lo, hi) = RESISTOR_RATING_RANGE;
+        within("resistor_rating", p.resistor_rating, lo, hi, "W")?;
         match kind {
             StageKind::CommonEmitter => {
                 if p.rc <= 0.0 {

@@ -111,11 +111,12 @@ use crate::operating_point::{OperatingPoint, Region};
 use crate::ratings::{Check, Dissipation, RESISTOR_DERATING};
 use crate::requirements::Requirements;
 use crate::response::Response;
+use crate::response::Side;
 use crate::stage::{
     Parts, Stage, StageKind, DEFAULT_RESISTOR_RATING, MAX_CAPACITANCE, MAX_RESISTANCE, MAX_SUPPLY,
 };
 use crate::swing::Swing;
-use crate::tolerance::{corner_level, find_corner, ln_gain, Side, Start, Tolerances};
+use crate::tolerance::{corner_level, find_corner, ln_gain, Start, Tolerances};
 use crate::transistor::{Device, Polarity, TransistorData};
 
 #[cfg(doc)]

@@ -51,10 +51,13 @@
 //! The symmetric swing is the smaller of the positive and the negative
 //! limit. Each of those is monotonic, but their minimum peaks where they
 //! cross, which for a centred design is inside the box. Its lowest value is
-//! the lowest over the vertices (exact); its highest is bounded by the
-//! smaller of the two one-sided maxima, min(max V+, max V−), which no point
-//! of the box can exceed; the corner given for it is the one of that
-//! binding one-sided maximum.
+//! the lowest over the vertices (exact: the minimum of two monotonic
+//! functions is smallest at a vertex). Its highest is the highest found at
+//! the vertices and the nominal point: like every entry of the table it is
+//! the value at the point the table names, which re-analysing that point
+//! gives again. A point inside the box, near where the two limits cross,
+//! can swing a little more; the swing requirement is a lower bound, so the
+//! lowest value is the one a check uses.
 //!
 //! # Sensitivity
 //! The percent change of each result per percent change of each parameter,
@@ -125,8 +128,8 @@ use crate::nodal::db20;
 use crate::operating_point::{OperatingPoint, Region};
 use crate::random::Stream;
 use crate::ratings::{Check, Dissipation};
-use crate::requirements::Requirements;
-use crate::response::{Response, SEARCH_FROM, SEARCH_TO};
+use crate::requirements::{corner_check, corner_met, Requirements};
+use crate::response::{Edge, Response, Side, SEARCH_FROM, SEARCH_TO};
 use crate::stage::{Stage, MAX_SUPPLY};
 use crate::swing::Swing;
 use crate::transistor::Device;
@@ -139,8 +142,11 @@ const PARAMETERS: usize = 13;
 const DRAWS_PER_TRIAL: u32 = 16;
 /// Monte Carlo trials when none are given.
 pub const DEFAULT_TRIALS: usize = 10_000;
-/// Most Monte Carlo trials accepted.
-const MAX_TRIALS: usize = 10_000_000;
+/// Most Monte Carlo trials in one run: a million, about 84 MB of kept
+/// results (percentiles need every value) and a few seconds natively. More
+/// trials would not tell a designer more: the yield's standard error at a
+/// million trials is below 0.05 percentage points.
+pub const MAX_TRIALS: usize = 1_000_000;
 /// Bins of each Monte Carlo histogram.
 const HISTOGRAM_BINS: usize = 20;
 /// Relative step of the sensitivity central differences (±1 %).
@@ -476,8 +482,6 @@ impl Tolerances {
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub(crate) struct Sample {
     pub(crate) values: [f64; QUANTITIES],
-    pub(crate) swing_positive: f64,
-    pub(crate) swing_negative: f64,
     pub(crate) active: bool,
 }
 
@@ -494,13 +498,6 @@ pub(crate) struct Start {
     pub(crate) x: f64,
     pub(crate) slope: f64,
     pub(crate) curvature: f64,
-}
-
-/// Which −3 dB crossing.
-#[derive(Debug, Clone, Copy, PartialEq, Eq)]
-pub(crate) enum Side {
-    Lower,
-    Upper,
 }
 
 fn ln_safe(x: f64) -> f64 {
@@ -708,6 +705,8 @@ struct Model {
     /// Nominal starts of the corner searches.
     lower: Option<Start>,
     upper: Option<Start>,
+    /// How the nominal stage's corner searches ended, lower and upper.
+    edges: [Edge; 2],
     /// The nominal results.
     sample: Sample,
 }
@@ -795,10 +794,9 @@ impl Model {
             high,
             lower: None,
             upper: None,
+            edges: [Edge::NotSearched; 2],
             sample: Sample {
                 values: [f64::NAN; QUANTITIES],
-                swing_positive: 0.0,
-                swing_negative: 0.0,
                 active: false,
             },
         };
@@ -812,6 +810,7 @@ impl Model {
         let solved = model.solve(&nominal)?;
         let resp = Response::new(&solved.stage, &solved.ss)?;
         let bw = resp.bandwidth()?;
+        model.edges = [bw.low_edge, bw.high_edge];
         let level = corner_level(&resp);
         let mut sample = midband_sample(&solved, &resp);
         for (f, side, slot, q) in [
@@ -990,8 +989,6 @@ fn midband_sample(solved: &Solved, resp: &Response) -> Sample {
     values[Quantity::SupplyCurrent.index()] = d.supply_current;
     Sample {
         values,
-        swing_positive: swing.positive,
-        swing_negative: swing.negative,
         active: op.region == Region::Active,
     }
 }
@@ -1049,6 +1046,13 @@ pub struct WorstCase {
     /// extremes are the vertex extremes only: points inside can fall outside
     /// them (module docs).
     pub inactive_vertices: usize,
+    /// How the lower-corner search ended over the box: that of the nominal
+    /// stage, or [`Edge::NoPassband`] when some vertex has no lower corner
+    /// where the nominal stage has one (its response no longer crosses the
+    /// −3 dB level there).
+    pub low_edge: Edge,
+    /// The same for the upper corner.
+    pub high_edge: Edge,
 }
 
 impl WorstCase {
@@ -1130,10 +1134,9 @@ impl Model {
         let n = 1u32 << axes.len();
         let nominal = &self.sample;
         let mut tracks: Vec<Track> = nominal.values.iter().map(|&v| Track::new(v)).collect();
-        let mut positive = Track::new(nominal.swing_positive);
-        let mut negative = Track::new(nominal.swing_negative);
         let cap_settings: &[i8] = if caps.is_empty() { &[0] } else { &[-1, 1] };
         let mut inactive_vertices = 0;
+        let mut edges = self.edges;
         for mask in 0..n {
             let mut x = self.nominal;
             for (bit, p) in axes.iter().enumerate() {
@@ -1168,27 +1171,17 @@ impl Model {
                             tracks[q.index()].add(s.get(q), at_mid);
                         }
                     }
-                    positive.add(s.swing_positive, at_mid);
-                    negative.add(s.swing_negative, at_mid);
                     first = false;
                 }
                 let mut s = *nominal;
                 corners_into(&resp, self.lower, self.upper, PRECISE, false, &mut s)?;
-                for q in [Quantity::FLow, Quantity::FHigh] {
+                for (k, q) in [Quantity::FLow, Quantity::FHigh].into_iter().enumerate() {
                     tracks[q.index()].add(s.get(q), at);
+                    if self.edges[k] == Edge::Corner && !s.get(q).is_finite() {
+                        edges[k] = Edge::NoPassband;
+                    }
                 }
             }
-        }
-        // The symmetric swing's upper bound: the smaller one-sided maximum.
-        let sw = &mut tracks[Quantity::Swing.index()];
-        let bound = if positive.max <= negative.max {
-            (positive.max, positive.max_at)
-        } else {
-            (negative.max, negative.max_at)
-        };
-        if bound.0 > sw.max {
-            sw.max = bound.0;
-            sw.max_at = bound.1;
         }
         let extremes = Quantity::ALL
             .into_iter()
@@ -1209,6 +1202,8 @@ impl Model {
             extremes,
             vertices: n as usize,
             inactive_vertices,
+            low_edge: edges[0],
+            high_edge: edges[1],
         })
     }
 }
@@ -1359,14 +1354,15 @@ const REQUIREMENT_IDS: [&str; 9] = [
 ];
 
 /// Which requirements `s` fails, as bits in the order of [`REQUIREMENT_IDS`],
-/// with the meaning of [`Requirements::check`] (a missing lower corner counts
-/// as 0 Hz, a missing upper corner as the top of the search range).
-pub(crate) fn failed_requirements(r: &Requirements, s: &Sample) -> u32 {
+/// with the meaning of [`Requirements::check`]: the corners by
+/// [`corner_met`], with `edges` the way the nominal stage's corner searches
+/// ended (a corner that the nominal stage has and `s` lacks fails).
+pub(crate) fn failed_requirements(r: &Requirements, s: &Sample, edges: [Edge; 2]) -> u32 {
     let gain_db = db20(s.get(Quantity::VoltageGain));
-    let f_low = s.get(Quantity::FLow);
-    let f_low = if f_low.is_nan() { 0.0 } else { f_low };
-    let f_high = s.get(Quantity::FHigh);
-    let f_high = if f_high.is_nan() { SEARCH_TO } else { f_high };
+    let found = |q: Quantity| Some(s.get(q)).filter(|f| f.is_finite());
+    let corner = |side: Side, edge: Edge, q: Quantity, l: Option<f64>| {
+        l.is_none_or(|l| corner_met(side, edge, found(q), l))
+    };
     let at_least = |v: f64, l: Option<f64>| l.is_none_or(|l| v.is_finite() && v >= l);
     let at_most = |v: f64, l: Option<f64>| l.is_none_or(|l| v.is_finite() && v <= l);
     let ok = [
@@ -1375,8 +1371,8 @@ pub(crate) fn failed_requirements(r: &Requirements, s: &Sample) -> u32 {
         at_least(s.get(Quantity::InputImpedance), r.min_input_impedance),
         at_most(s.get(Quantity::OutputImpedance), r.max_output_impedance),
         at_least(s.get(Quantity::Swing), r.min_swing),
-        at_most(f_low, r.max_f_low),
-        at_least(f_high, r.min_f_high),
+        corner(Side::Lower, edges[0], Quantity::FLow, r.max_f_low),
+        corner(Side::Upper, edges[1], Quantity::FHigh, r.min_f_high),
         at_most(s.get(Quantity::SupplyCurrent), r.max_supply_current),
         at_most(
             s.get(Quantity::JunctionTemperature),
@@ -1605,7 +1601,7 @@ impl MonteCarlo {
         let upper = predict(m.upper, 1);
         match m.evaluate_quick(&x, lower, upper) {
             Ok(s) => {
-                let mut state = failed_requirements(&self.requirements, &s);
+                let mut state = failed_requirements(&self.requirements, &s, m.edges);
                 if !s.active {
                     state |= NOT_ACTIVE;
                 }
@@ -1840,12 +1836,45 @@ pub fn worst_checks(requirements: &Requirements, worst: &WorstCase) -> Vec<Worst
     let mut out = Vec::new();
     for (id, limit, q, at_least) in rows {
         let Some(limit) = limit else { continue };
+        // A corner that is not found at every vertex: the rules of the
+        // nominal check (`corner_met`), with what the box showed.
+        let side = match q {
+            FLow => Some((Side::Lower, worst.low_edge, "worst-case lower corner")),
+            FHigh => Some((Side::Upper, worst.high_edge, "worst-case upper corner")),
+            _ => None,
+        };
+        if let Some((side, edge, what)) = side {
+            if edge == Edge::NoPassband {
+                let bound = if at_least { "at least" } else { "at most" };
+                let check = Check {
+                    id: id.into(),
+                    pass: false,
+                    value: 0.0,
+                    limit,
+                    unit: "Hz",
+                    message: alloc::format!(
+                        "{what}: none at some vertex of the tolerance box, where the response does not come within 3 dB of its midband gain; the required {bound} {} is not met",
+                        crate::format::format_si(limit, "Hz")
+                    ),
+                };
+                out.push(WorstCheck {
+                    check,
+                    corner: None,
+                });
+                continue;
+            }
+            if edge != Edge::Corner {
+                let check = corner_check(side, what, edge, None, limit, &Default::default());
+                out.push(WorstCheck {
+                    check,
+                    corner: None,
+                });
+                continue;
+            }
+        }
         let (value, corner) = match worst.get(q) {
             Some(e) if at_least => (e.min, Some(e.min_corner.clone())),
             Some(e) => (e.max, Some(e.max_corner.clone())),
-            // A stage without this corner frequency.
-            None if q == FLow => (0.0, None),
-            None if q == FHigh => (SEARCH_TO, None),
             None => (f64::NAN, None),
         };
         let (value, unit) = match q {

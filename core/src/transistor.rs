@@ -27,7 +27,7 @@
 //! collector current (and the datasheet's test VCE of [`TEST_VCE`]).
 
 use crate::constants::{thermal_voltage, Temperature, DATASHEET_TEMPERATURE};
-use crate::error::{non_negative, positive, within, Error, ErrorKind, Result};
+use crate::error::{within, Error, ErrorKind, Result};
 
 /// Collector–emitter voltage at which datasheet hFE and VBE are taken to be
 /// stated, in volts. 5 V is the usual small-signal test condition (common
@@ -176,20 +176,22 @@ impl TransistorData {
             within("early_voltage", va, 1.0, 10_000.0, "V")?;
         }
         within("ft", self.ft, 1e3, 1e12, "Hz")?;
-        within("cob", self.cob, 0.0, 1e-6, "F")?;
+        if self.cob != 0.0 {
+            within("cob", self.cob, 1e-15, 1e-6, "F")?;
+        }
         if let Some(v) = self.cob_vcb {
             within("cob_vcb", v, 0.0, 10_000.0, "V")?;
         }
         within("rbb", self.rbb, 0.0, 10_000.0, "Ω")?;
+        crate::stage::resistor("rbb", self.rbb)?;
         within("vce_sat", self.vce_sat, 0.0, 10.0, "V")?;
-        positive("vceo_max", self.vceo_max, "V")?;
-        positive("ic_max", self.ic_max, "A")?;
-        positive("ptot_max", self.ptot_max, "W")?;
-        positive("rth_ja", self.rth_ja, "K/W")?;
+        within("vceo_max", self.vceo_max, 1.0, 10_000.0, "V")?;
+        within("ic_max", self.ic_max, 1e-6, 1000.0, "A")?;
+        within("ptot_max", self.ptot_max, 1e-3, 10_000.0, "W")?;
+        within("rth_ja", self.rth_ja, 0.01, 10_000.0, "K/W")?;
         within("tj_max", self.tj_max.celsius(), 25.0, 300.0, "°C")?;
         within("xtb", self.xtb, -5.0, 5.0, "")?;
         within("beta_reverse", self.beta_reverse, 0.01, 1000.0, "")?;
-        non_negative("ptot_max", self.ptot_max, "W")?;
         Ok(())
     }
 

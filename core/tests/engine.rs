@@ -28,9 +28,10 @@
 //! equations in the mirrored frame); anything else says why beside it.
 
 use stagewright::{
-    analyze, analyze_with, preset, AcNetwork, Band, Error, ErrorKind, Midband, Options, Parts,
-    Polarity, Region, Requirements, Stage, StageKind, Temperature, MAX_SUPPLY, OPEN_RESISTANCE,
-    PRESETS, SEARCH_FROM, SEARCH_TO,
+    analyze, analyze_with, preset, AcNetwork, Band, Design, Edge, Error, ErrorKind, Midband,
+    MonteCarlo, Options, Parts, Polarity, Region, Requirements, Stage, StageKind, Temperature,
+    Tolerances, DEFAULT_TRIALS, MAX_DEPTH, MAX_ECHO, MAX_NOTES, MAX_SUPPLY, MAX_TITLE, MAX_TRIALS,
+    MIN_RESISTANCE, OPEN_RESISTANCE, PRESETS, SEARCH_FROM, SEARCH_TO,
 };
 
 /// |a − b| / max(|a|, |b|), 0 when both are 0.
@@ -407,6 +408,15 @@ fn limits_ideal_capacitors_give_no_lower_corner() {
     s.parts.c_emitter = None;
     let a = analyze(&s).expect("analyses");
     assert_eq!(a.bandwidth.f_low, None, "no corner above {SEARCH_FROM} Hz");
+    // Not a corner below the search range: the gain holds to DC.
+    assert_eq!(a.bandwidth.low_edge, Edge::None);
+    assert_eq!(a.bandwidth.high_edge, Edge::Corner);
+    let met = Requirements {
+        max_f_low: Some(1.0),
+        ..Requirements::default()
+    }
+    .check(&a);
+    assert!(met[0].pass, "{}", met[0].message);
     let f_high = a
         .bandwidth
         .f_high
@@ -415,6 +425,132 @@ fn limits_ideal_capacitors_give_no_lower_corner() {
     // The search range the docs state: 1 mHz to 1 THz.
     close("SEARCH_FROM", SEARCH_FROM, 1e-3, 0.0, "a typed constant");
     close("SEARCH_TO", SEARCH_TO, 1e12, 0.0, "a typed constant");
+}
+
+#[test]
+fn limits_a_coupling_capacitor_far_too_small_leaves_no_passband() {
+    // 10 fF into the base: its corner (about 1/(2π·10 fF·Zin)) lands far
+    // above the device's upper corner, so the response never comes within
+    // 3 dB of the midband gain. Both corner requirements fail, a caution
+    // says so, and the report's figures name the peak.
+    let mut s = example();
+    s.parts.c_in = Some(10e-15);
+    let a = analyze(&s).expect("analyses");
+    let b = &a.bandwidth;
+    assert_eq!(
+        (b.low_edge, b.high_edge),
+        (Edge::NoPassband, Edge::NoPassband)
+    );
+    assert!(!b.has_passband());
+    assert!(
+        b.peak_ratio < std::f64::consts::FRAC_1_SQRT_2,
+        "peak {}",
+        b.peak_ratio
+    );
+    // The peak found is the largest response: no point of a dense sweep
+    // (40 a decade over the search range) is above it; 1e-9 relative for
+    // the golden-section search's last step.
+    let mid = a.midband.voltage_gain_from_source.abs();
+    for p in a
+        .response()
+        .sweep(SEARCH_FROM, SEARCH_TO, 601)
+        .expect("sweep")
+    {
+        let r = p.voltage_gain_from_source.norm() / mid;
+        assert!(
+            r <= b.peak_ratio * (1.0 + 1e-9),
+            "{r} at {} Hz",
+            p.frequency
+        );
+    }
+    let checks = Requirements {
+        max_f_low: Some(1e12),
+        min_f_high: Some(1e-3),
+        ..Requirements::default()
+    }
+    .check(&a);
+    assert!(checks.iter().all(|c| !c.pass), "{checks:?}");
+    assert!(checks.iter().all(|c| c.value.is_finite()));
+    assert!(
+        checks[0].message.contains("no passband"),
+        "{}",
+        checks[0].message
+    );
+    assert!(a.cautions.iter().any(|c| c.id == "no-passband"));
+}
+
+#[test]
+fn limits_part_and_device_bounds_name_the_field() {
+    // Values a user can type that are no part: each refused, naming it.
+    type Mutation = fn(&mut Stage);
+    let cases: [(Mutation, &str); 9] = [
+        (|s| s.parts.rc = 1e-30, "rc"),
+        (|s| s.parts.rs = 1e-12, "rs"),
+        (|s| s.parts.r1 = Some(1e13), "r1"),
+        (|s| s.parts.c_in = Some(1e-18), "c_in"),
+        (|s| s.transistor.rbb = 1e-300, "transistor.rbb"),
+        (|s| s.transistor.cob = 1e-300, "transistor.cob"),
+        (|s| s.transistor.ic_max = 1e300, "transistor.ic_max"),
+        (|s| s.transistor.rth_ja = 1e-9, "transistor.rth_ja"),
+        (|s| s.supply = 1e-6, "supply"),
+    ];
+    for (mutate, field) in cases {
+        let mut s = example();
+        mutate(&mut s);
+        let e = error_of(&s);
+        assert_eq!(e.field(), field, "{e}");
+        assert!(e.to_string().contains(" and "), "names the range: {e}");
+    }
+    // 0 Ω is a short where the stage allows one, and the smallest part is fine.
+    let mut s = example();
+    s.parts.rs = 0.0;
+    assert!(analyze(&s).is_ok());
+    s.parts.rs = MIN_RESISTANCE;
+    let a = analyze(&s).expect("1 mΩ of source resistance");
+    assert!(a.midband.input_impedance.is_finite());
+}
+
+#[test]
+fn limits_documents_and_monte_carlo() {
+    let design = |extra: &str| {
+        [
+            r#"{"format": "stagewright/1", "stage": "common-collector", "supply": 12,
+            "transistor": {"preset": "general-purpose-npn"},
+            "parts": {"r1": "47k", "r2": "47k", "re": "2k2"}"#,
+            extra,
+            "}",
+        ]
+        .concat()
+    };
+    assert!(Design::from_json(&design("")).is_ok());
+    let long = |n: usize| "x".repeat(n);
+    assert!(Design::from_json(&design(&format!(r#", "title": "{}""#, long(MAX_TITLE)))).is_ok());
+    let e = Design::from_json(&design(&format!(r#", "title": "{}""#, long(MAX_TITLE + 1))))
+        .unwrap_err();
+    assert_eq!(e.field(), "title");
+    let e = Design::from_json(&design(&format!(r#", "notes": "{}""#, long(MAX_NOTES + 1))))
+        .unwrap_err();
+    assert_eq!(e.field(), "notes");
+    // Nesting: MAX_DEPTH levels are read (and refused as a value), one more is refused as too deep.
+    let nest = |n: usize| "[".repeat(n) + &"]".repeat(n);
+    let e =
+        Design::from_json(&design(&format!(r#", "notes": {}"#, nest(MAX_DEPTH - 1)))).unwrap_err();
+    assert!(matches!(e.kind(), ErrorKind::Parse { .. }), "{e}");
+    let e = Design::from_json(&design(&format!(r#", "notes": {}"#, nest(MAX_DEPTH)))).unwrap_err();
+    assert!(matches!(e.kind(), ErrorKind::Document { .. }), "{e}");
+    // Echoed text is cut to MAX_ECHO characters and an ellipsis.
+    let e = Design::from_json(&design(&format!(r#", "{}": 1"#, long(100_000)))).unwrap_err();
+    assert_eq!(e.field().chars().count(), MAX_ECHO + 1, "{}", e.field());
+    // Monte Carlo: at most MAX_TRIALS, refused above with the field named.
+    let s = example();
+    let t = Tolerances::default();
+    let r = Requirements::default();
+    let e = MonteCarlo::new(&s, &t, &r, MAX_TRIALS + 1, 1).unwrap_err();
+    assert_eq!(e.field(), "trials");
+    // The limit itself is accepted (about 84 MB of results, allocated once).
+    let mc = MonteCarlo::new(&s, &t, &r, MAX_TRIALS, 1).expect("MAX_TRIALS is allowed");
+    assert_eq!(mc.trials(), MAX_TRIALS);
+    assert_eq!(MAX_TRIALS, 100 * DEFAULT_TRIALS, "the README's limit: a million");
 }
 
 #[test]

@@ -416,6 +416,35 @@ const COVERAGE: &[(&str, Covered)] = &[
         Reference("practice", "resistor_derating_and_junction_temperature"),
     ),
     ("MAX_SUPPLY", Api("errors_each_bad_part_is_named")),
+    (
+        "MIN_SUPPLY",
+        Api("limits_part_and_device_bounds_name_the_field"),
+    ),
+    (
+        "MIN_RESISTANCE",
+        Api("limits_part_and_device_bounds_name_the_field"),
+    ),
+    (
+        "MAX_RESISTANCE",
+        Api("limits_part_and_device_bounds_name_the_field"),
+    ),
+    (
+        "MIN_CAPACITANCE",
+        Api("limits_part_and_device_bounds_name_the_field"),
+    ),
+    (
+        "MAX_CAPACITANCE",
+        Api("limits_part_and_device_bounds_name_the_field"),
+    ),
+    ("MAX_DEPTH", Api("limits_documents_and_monte_carlo")),
+    ("MAX_ECHO", Api("limits_documents_and_monte_carlo")),
+    ("MAX_NOTES", Api("limits_documents_and_monte_carlo")),
+    ("MAX_TITLE", Api("limits_documents_and_monte_carlo")),
+    ("MAX_TRIALS", Api("limits_documents_and_monte_carlo")),
+    (
+        "Edge",
+        Reference("nodal", "no_passband_agrees_with_independent_nodal_solve"),
+    ),
     // swing
     (
         "Swing",
