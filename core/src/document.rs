@@ -31,16 +31,12 @@ use core::fmt::{self, Write as _};
 use serde::de::{self, DeserializeSeed, MapAccess, SeqAccess, Visitor};
 use serde_json::{Map, Number, Value};
 
-use crate::error::{Error, ErrorKind, Result};
+use crate::error::{Error, ErrorKind, Result, MAX_ECHO};
 
 /// Deepest nesting of objects and lists a document may have. A design or
 /// specification file needs two levels (the document, and a block such as
 /// `parts`); the allowance leaves room for formats to grow.
 pub const MAX_DEPTH: usize = 16;
-
-/// Longest text echoed back in a message, in characters; longer text is cut
-/// with "…" (a message quotes what was typed, not a whole file).
-pub const MAX_ECHO: usize = 40;
 
 /// `text` cut to [`MAX_ECHO`] characters, with "…" when it was longer.
 pub(crate) fn echo(text: &str) -> String {

@@ -150,6 +150,21 @@ impl Error {
     }
 }
 
+/// Longest text echoed back in a message, in characters; longer text is
+/// cut with "…" (a message quotes what was typed, not a whole file).
+pub const MAX_ECHO: usize = 40;
+
+/// Writes `text` cut to [`MAX_ECHO`] characters, with "…" when longer.
+fn echo(f: &mut fmt::Formatter<'_>, text: &str) -> fmt::Result {
+    match text.char_indices().nth(MAX_ECHO) {
+        Some((end, _)) => {
+            f.write_str(&text[..end])?;
+            f.write_str("…")
+        }
+        None => f.write_str(text),
+    }
+}
+
 fn show_value(f: &mut fmt::Formatter<'_>, value: f64, unit: &str) -> fmt::Result {
     if !value.is_finite() {
         return write!(f, "{value}");
@@ -163,16 +178,25 @@ fn show_value(f: &mut fmt::Formatter<'_>, value: f64, unit: &str) -> fmt::Result
 
 impl fmt::Display for Error {
     fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        // A field is a dotted path of known keys, or (for an unknown key)
+        // what was typed, cut by the reader; cut here too, so that no
+        // message grows with its input.
+        let mut cut = String::new();
         let field = if self.field.is_empty() {
             "input"
+        } else if self.field.chars().count() > 4 * MAX_ECHO {
+            cut.extend(self.field.chars().take(4 * MAX_ECHO));
+            cut.push('…');
+            &cut
         } else {
             &self.field
         };
         match &self.kind {
-            ErrorKind::Parse { text, expected } => write!(
-                f,
-                "{field}: cannot read \"{text}\" as a value; expected {expected}"
-            ),
+            ErrorKind::Parse { text, expected } => {
+                write!(f, "{field}: cannot read \"")?;
+                echo(f, text)?;
+                write!(f, "\" as a value; expected {expected}")
+            }
             ErrorKind::OutOfRange {
                 value,
                 unit,
@@ -190,7 +214,9 @@ impl fmt::Display for Error {
                 None => write!(f, "unknown key \"{field}\""),
             },
             ErrorKind::Unsupported { value, allowed } => {
-                write!(f, "{field}: \"{value}\" is not understood; allowed: {allowed}")
+                write!(f, "{field}: \"")?;
+                echo(f, value)?;
+                write!(f, "\" is not understood; allowed: {allowed}")
             }
             ErrorKind::NoConvergence {
                 iterations,

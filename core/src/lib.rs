@@ -113,8 +113,8 @@ pub use design_file::{
     MAX_TITLE,
 };
 #[cfg(feature = "serde")]
-pub use document::{MAX_DEPTH, MAX_ECHO};
-pub use error::{Error, ErrorKind, Result};
+pub use document::MAX_DEPTH;
+pub use error::{Error, ErrorKind, Result, MAX_ECHO};
 pub use eseries::{ESeries, SeriesLookup};
 pub use format::{format_si, format_value};
 pub use hybrid_pi::{SmallSignal, OPEN_RESISTANCE};

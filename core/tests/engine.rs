@@ -550,7 +550,11 @@ fn limits_documents_and_monte_carlo() {
     // The limit itself is accepted (about 84 MB of results, allocated once).
     let mc = MonteCarlo::new(&s, &t, &r, MAX_TRIALS, 1).expect("MAX_TRIALS is allowed");
     assert_eq!(mc.trials(), MAX_TRIALS);
-    assert_eq!(MAX_TRIALS, 100 * DEFAULT_TRIALS, "the README's limit: a million");
+    assert_eq!(
+        MAX_TRIALS,
+        100 * DEFAULT_TRIALS,
+        "the README's limit: a million"
+    );
 }
 
 #[test]

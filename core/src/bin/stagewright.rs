@@ -258,19 +258,30 @@ impl Problem {
 }
 
 fn read_text(file: &str) -> Result<String, Problem> {
-    if file == "-" {
-        let mut text = String::new();
+    let bytes = if file == "-" {
+        let mut bytes = Vec::new();
         io::stdin()
-            .read_to_string(&mut text)
+            .read_to_end(&mut bytes)
             .map_err(|e| Problem::Io(format!("cannot read standard input: {e}")))?;
-        Ok(text)
+        bytes
     } else {
-        std::fs::read_to_string(file).map_err(|e| {
-            Problem::Io(format!(
-                "cannot read the file: {e}; check the path (use - for standard input)"
-            ))
-        })
-    }
+        std::fs::read(file).map_err(|e| {
+            let hint = match e.kind() {
+                io::ErrorKind::NotFound => "; check the path (use - for standard input)",
+                io::ErrorKind::PermissionDenied => "; check the file's permissions",
+                _ => "",
+            };
+            Problem::Io(format!("cannot read the file: {e}{hint}"))
+        })?
+    };
+    String::from_utf8(bytes).map_err(|e| {
+        let at = e.utf8_error().valid_up_to();
+        let byte = e.as_bytes()[at];
+        Problem::Io(format!(
+            "the file is not UTF-8 text: byte 0x{byte:02X} at offset {at} is not valid UTF-8; \
+             a design file is JSON text, saved as UTF-8"
+        ))
+    })
 }
 
 /// Reads, validates and analyses one design file.
