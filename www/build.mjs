@@ -56,10 +56,12 @@ const outDir = arg("--out", path.join(root, "dist"));
 const baseName = extras ? "stagewright-designer" : "stagewright";
 
 // Size budgets of the standalone pages (DEVELOPERS.md, "Size"): the
-// calculator 400 KB raw and 150 KB gzipped (issue 4), the designer 400 KB
-// raw and 200 KB gzipped.
+// calculator 400 KB raw and 160 KB gzipped (150 KB until the page read
+// design files with the core's own JSON reader, which costs about 17 KB
+// of the compressed engine: serde_json's parser with correctly rounded
+// numbers), the designer 400 KB raw and 200 KB gzipped.
 const BUDGET_HTML_RAW = 400 * 1000;
-const BUDGET_HTML_GZIP = (extras ? 200 : 150) * 1000;
+const BUDGET_HTML_GZIP = (extras ? 200 : 160) * 1000;
 
 const read = (p) => readFileSync(p, "utf8");
 

@@ -74,6 +74,13 @@ const STAGES = [
   ["common-base", "common base"],
 ];
 
+/** `obj[key]` when `key` is the object's own property, else undefined: a
+ * key that comes from a design ("constructor", "__proto__") never reaches
+ * a prototype's member. */
+function own(obj, key) {
+  return typeof key === "string" && Object.prototype.hasOwnProperty.call(obj, key) ? obj[key] : undefined;
+}
+
 /** Which parts each stage uses (the rest are hidden and left out). */
 const STAGE_PARTS = {
   "common-emitter": ["r1", "r2", "rc", "re", "re_bypassed", "c_emitter", "rs", "rl", "c_in", "c_out"],
@@ -92,8 +99,9 @@ const GROUPS = [
     id: "stage",
     legend: "Stage and supply",
     fields: [
-      F(["title"], "", "title of this design", { kind: "text" }),
-      F(["notes"], "", "notes for reviewers", { kind: "textarea" }),
+      // The lengths the design file allows (README: title 200, notes 20 000).
+      F(["title"], "", "title of this design", { kind: "text", maxlength: 200 }),
+      F(["notes"], "", "notes for reviewers", { kind: "textarea", maxlength: 20000 }),
       F(["stage"], "", "configuration", { kind: "select", options: STAGES }),
       F(["supply"], "V", "supply voltage"),
       F(["ambient"], "°C", "ambient temperature", { placeholder: "25" }),
@@ -280,33 +288,29 @@ function encodeDesign(design) {
   return utf8ToBase64Url(JSON.stringify(ordered(design)));
 }
 
-/** Reads a design from JSON text, base64url text or an object. Throws an
- * Error with a message fit to show. */
-function readDesign(source) {
-  let obj = source;
+/** The JSON text of a design given as JSON text, as a `#design=` link code
+ * (base64url of the JSON) or as an object (serialised). The text is read
+ * by the engine, the command line's own reader, before anything uses it
+ * (see `_loadText`); this only turns the source into text. Throws an Error
+ * with a message fit to show. */
+function designText(source) {
   if (typeof source === "string") {
     const text = source.trim();
-    if (text.startsWith("{")) {
-      try {
-        obj = JSON.parse(text);
-      } catch (e) {
-        throw new Error("the design is not valid JSON: " + e.message);
-      }
-    } else {
-      try {
-        obj = JSON.parse(base64UrlToUtf8(text));
-      } catch (e) {
-        throw new Error("the design text is neither JSON nor a design link code");
-      }
+    if (text.startsWith("{") || text === "") return text;
+    try {
+      return base64UrlToUtf8(text);
+    } catch (e) {
+      throw new Error("the design text is neither JSON nor a design link code");
     }
   }
-  if (obj === null || typeof obj !== "object" || Array.isArray(obj)) {
-    throw new Error("a design must be a JSON object");
+  if (source === null || typeof source !== "object" || Array.isArray(source)) {
+    throw new Error("a design must be a JSON object, or its text");
   }
-  if (obj.format !== undefined && obj.format !== FORMAT) {
-    throw new Error(`format: "${String(obj.format)}" is not a Stagewright design; expected "${FORMAT}"`);
+  try {
+    return JSON.stringify(source);
+  } catch (e) {
+    throw new Error("the design object cannot be written as JSON: " + e.message);
   }
-  return clone(obj);
 }
 
 /** JSON for inside an HTML <script> element: no "</" or "<!--". */
@@ -386,7 +390,7 @@ function enginePresets(api) {
 }
 
 function presetData(api, name) {
-  if (!name || !api || typeof api.preset_data !== "function") return null;
+  if (!name || typeof name !== "string" || !api || typeof api.preset_data !== "function") return null;
   try {
     return api.preset_data(name) || null;
   } catch (e) {
@@ -970,11 +974,14 @@ class StagewrightCalc extends HTMLElement {
       this._pendingDesign = value;
       return;
     }
+    let text;
     try {
-      this._loadDesign(readDesign(value));
+      text = designText(value);
     } catch (e) {
       this._showLoadError(e.message);
+      return;
     }
+    this._loadText(text);
   }
 
   /** The last report computed (null before the first one). */
@@ -1042,12 +1049,7 @@ class StagewrightCalc extends HTMLElement {
     }
     const script = this.querySelector('script[type="application/json"]');
     if (script) {
-      try {
-        this._loadDesign(readDesign(script.textContent));
-      } catch (e) {
-        this._showLoadError(e.message);
-        this._loadDesign(clone(EXAMPLE_DESIGN), true);
-      }
+      this._loadText(script.textContent);
       return;
     }
     const src = this.getAttribute("src");
@@ -1060,7 +1062,7 @@ class StagewrightCalc extends HTMLElement {
         })
         .then((text) => {
           this._setBanner("");
-          this._loadDesign(readDesign(text));
+          this._loadText(text);
         })
         .catch((e) => {
           this._showLoadError(e.message);
@@ -1083,10 +1085,35 @@ class StagewrightCalc extends HTMLElement {
     if (!this._design) this._loadDesign(clone(EXAMPLE_DESIGN), true);
   }
 
+  /** Loads a design from its JSON text once the engine has read it with
+   * the command line's reader: a text it refuses (bad JSON, a key given
+   * twice, nesting too deep, an unknown key, a value out of range) shows
+   * the command line's message, and the last good design stays. Before
+   * the engine is ready the text waits (the last one given wins). */
+  _loadText(text) {
+    const api = this._api;
+    if (!api || typeof api.read_design !== "function") {
+      this._pendingText = text;
+      if (!this._design) this._loadDesign(clone(EXAMPLE_DESIGN), true);
+      return;
+    }
+    this._pendingText = undefined;
+    try {
+      api.read_design(text);
+    } catch (err) {
+      this._showLoadError(asFieldError(err).message);
+      if (!this._design) this._loadDesign(clone(EXAMPLE_DESIGN), true);
+      return;
+    }
+    // Read by the core: JSON.parse sees the same document (no key twice,
+    // no unknown key, at most 16 levels).
+    this._loadDesign(JSON.parse(text));
+  }
+
   _loadDesign(design, isExample) {
     const d = clone(design);
     d.format = FORMAT;
-    if (!STAGE_PARTS[d.stage]) d.stage = d.stage === undefined ? "common-emitter" : d.stage;
+    if (!own(STAGE_PARTS, d.stage)) d.stage = "common-emitter";
     this._design = d;
     this._isExample = !!isExample;
     this._invalid.clear();
@@ -1106,7 +1133,7 @@ class StagewrightCalc extends HTMLElement {
    * chosen stage uses. */
   _exportDesign() {
     const d = clone(this._design);
-    const used = STAGE_PARTS[d.stage];
+    const used = own(STAGE_PARTS, d.stage);
     if (used && d.parts && typeof d.parts === "object") {
       for (const k of Object.keys(d.parts)) {
         const spec = FIELD_BY_KEY.get(k);
@@ -1244,7 +1271,7 @@ class StagewrightCalc extends HTMLElement {
         input = h("select", { id: fid, name: spec.key });
         if (spec.options) for (const [v, t] of spec.options) input.append(h("option", { value: v }, t));
       } else if (spec.kind === "textarea") {
-        input = h("textarea", { id: fid, name: spec.key, rows: 2, spellcheck: "true" });
+        input = h("textarea", { id: fid, name: spec.key, rows: 2, spellcheck: "true", maxlength: spec.maxlength });
       } else {
         input = h("input", {
           id: fid,
@@ -1253,6 +1280,7 @@ class StagewrightCalc extends HTMLElement {
           autocomplete: "off",
           spellcheck: "false",
           autocapitalize: "off",
+          maxlength: spec.maxlength,
         });
       }
       const understood = h("output", { id: id("u-" + spec.key), class: "understood", for: fid });
@@ -1607,7 +1635,7 @@ class StagewrightCalc extends HTMLElement {
 
   _applyStage() {
     const stage = this._design.stage;
-    const used = STAGE_PARTS[stage] || STAGE_PARTS["common-emitter"];
+    const used = own(STAGE_PARTS, stage) || STAGE_PARTS["common-emitter"];
     const unused = [];
     for (const f of this._fields.values()) {
       if (!f.spec.series) continue;
@@ -1683,7 +1711,7 @@ class StagewrightCalc extends HTMLElement {
         /* keep the word */
       }
     }
-    const stage = STAGE_PARTS[d.stage] ? d.stage : "common-emitter";
+    const stage = own(STAGE_PARTS, d.stage) ? d.stage : "common-emitter";
     const shape = `${stage}|${polarity}`;
     if (this._svg && this._svgShape === shape) {
       updateStage(this._svg, values, supplyText);
@@ -1732,6 +1760,10 @@ class StagewrightCalc extends HTMLElement {
       sel.value = current;
     }
     if (this._fillSpecPresets && this._specInputs) this._fillSpecPresets(api);
+    if (this._pendingText !== undefined) {
+      this._loadText(this._pendingText);
+      return;
+    }
     if (this._design) {
       this._refreshAllFields();
       this._refreshHeading();
@@ -1930,7 +1962,7 @@ class StagewrightCalc extends HTMLElement {
       cbody.append(h("tr", { class: c.pass ? "pass" : "fail" },
         h("td", null, h("span", { class: "verdict" }, c.pass ? "✓ met" : "✗ not met")),
         h("th", { scope: "row" }, name, rel ? h("span", { class: "rel" }, " " + rel) : null),
-        h("td", null, fmt(c.value, unit)),
+        h("td", null, cornerValue(report, id) || fmt(c.value, unit)),
         h("td", null, fmt(c.limit, unit)),
         h("td", { class: "msg" }, typeof c.message === "string" ? c.message : "")));
     }
@@ -2241,16 +2273,35 @@ class StagewrightCalc extends HTMLElement {
   _openFile(file) {
     const reader = new FileReader();
     reader.onload = () => {
+      const api = this._api;
+      let text;
       try {
-        this._loadDesign(readDesign(String(reader.result)));
-        this._status.textContent = `Opened ${file.name}.`;
-      } catch (e) {
-        this._showLoadError(`${file.name}: ${e.message}`);
+        // The engine checks the bytes are UTF-8, with the command line's message.
+        const bytes = new Uint8Array(reader.result);
+        text = api && typeof api.utf8_text === "function"
+          ? api.utf8_text(bytes)
+          : new TextDecoder("utf-8", { fatal: true }).decode(bytes);
+      } catch (err) {
+        this._showLoadError(`${file.name}: ${asFieldError(err).message}`);
+        return;
       }
+      const before = this._design;
+      this._loadText(text);
+      if (this._design !== before) this._status.textContent = `Opened ${file.name}.`;
     };
     reader.onerror = () => this._showLoadError(`${file.name} could not be read`);
-    reader.readAsText(file);
+    reader.readAsArrayBuffer(file);
   }
+}
+
+/** The value shown for a corner requirement whose corner was not found
+ * (the report's bandwidth.low_edge / high_edge say why), else "". */
+function cornerValue(report, id) {
+  const b = report.bandwidth || {};
+  const edge = id === "max_f_low" ? b.low_edge : id === "min_f_high" ? b.high_edge : "corner";
+  if (edge === "none" || edge === "no-passband") return "none";
+  if (edge === "beyond-search") return id === "max_f_low" ? "< 1 mHz" : "> 1 THz";
+  return "";
 }
 
 /** Phase in degrees made continuous (no jump between −180° and 180°), for
@@ -2299,7 +2350,7 @@ function upgradePlaceholders(root) {
 
 StagewrightCalc.upgradePlaceholders = upgradePlaceholders;
 StagewrightCalc.encodeDesign = encodeDesign;
-StagewrightCalc.readDesign = readDesign;
+StagewrightCalc.designText = designText;
 StagewrightCalc.version = STAGEWRIGHT_VERSION;
 
 customElements.define("stagewright-calc", StagewrightCalc);

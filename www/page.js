@@ -23,6 +23,12 @@
     timer = 0;
     var design = pending;
     pending = null;
+    // The address changed from outside since it was last read or written
+    // (a link followed, back or forward): that design wins, not this one.
+    if (location.hash !== written && /^#design=/.test(location.hash)) {
+      fromHash();
+      return;
+    }
     var hash = "#design=" + Calc.encodeDesign(design);
     if (hash !== location.hash) {
       written = hash;

@@ -129,23 +129,25 @@ Object.assign(StagewrightCalc.prototype, {
   designFromSpec(spec) {
     const api = this._api;
     if (!this._specOut) return null;
-    if (spec !== undefined) this._specJson.value = typeof spec === "string" ? spec : JSON.stringify(spec, null, 2);
     this._specOut.textContent = "";
     this._specError.hidden = true;
     this.specResult = null;
-    if (!api || typeof api.design_from_spec !== "function") {
-      this._specError.textContent = "The engine is not ready yet.";
+    const refuse = (message) => {
+      this._specError.textContent = message;
       this._specError.hidden = false;
       return null;
+    };
+    if (spec !== undefined) {
+      try {
+        this._specJson.value = typeof spec === "string" ? spec : JSON.stringify(spec, null, 2);
+      } catch (err) {
+        return refuse(`The specification object cannot be written as JSON: ${err.message}`);
+      }
     }
-    let text = this._specJson.value;
-    try {
-      JSON.parse(text);
-    } catch (err) {
-      this._specError.textContent = `The specification is not valid JSON: ${err.message}`;
-      this._specError.hidden = false;
-      return null;
-    }
+    if (!api || typeof api.design_from_spec !== "function") return refuse("The engine is not ready yet.");
+    // The engine reads the text with the command line's reader (its JSON
+    // messages included).
+    const text = this._specJson.value;
     let r;
     const t0 = performance.now();
     try {
@@ -199,6 +201,11 @@ Object.assign(StagewrightCalc.prototype, {
     this._tolSeed = h("input", { type: "text", id: id("tol-seed"), value: "1", inputmode: "numeric", autocomplete: "off" });
     const run = h("button", { type: "button", class: "primary", "data-action": "run-tolerance" }, "Run");
     run.addEventListener("click", () => this.runTolerance());
+    // Stops a run between chunks; the trials done so far are summarised.
+    this._tolCancel = h("button", { type: "button", "data-action": "cancel-tolerance", hidden: true }, "Cancel");
+    this._tolCancel.addEventListener("click", () => {
+      this._tolCancelled = true;
+    });
     this._tolProgress = h("progress", { max: "1", value: "0", hidden: true, "aria-label": "Monte Carlo progress" });
     this._tolError = h("p", { class: "spec-error", role: "alert", hidden: true });
     this._tolOut = h("div", { class: "tol-out" });
@@ -214,7 +221,7 @@ Object.assign(StagewrightCalc.prototype, {
       h("p", { class: "hint" }, "Worst case over the tolerance box (the design's tolerances block, or the defaults), the sensitivities and a seeded Monte Carlo run, as stagewright check --worst-case --monte-carlo N --seed S gives them."),
       h("p", { class: "tol-inputs" },
         h("label", { for: id("tol-n") }, "trials N "), this._tolTrials,
-        h("label", { for: id("tol-seed") }, " seed "), this._tolSeed, " ", run, " ", this._tolProgress),
+        h("label", { for: id("tol-seed") }, " seed "), this._tolSeed, " ", run, " ", this._tolProgress, " ", this._tolCancel),
       this._tolError, this._tolOut, this._tolHistBox);
   },
 
@@ -235,10 +242,12 @@ Object.assign(StagewrightCalc.prototype, {
     this._tolError.hidden = true;
     this._tolHistBox.hidden = true;
     this.toleranceResult = null;
+    this._tolCancelled = false;
     const fail = (msg) => {
       this._tolError.textContent = msg;
       this._tolError.hidden = false;
       this._tolProgress.hidden = true;
+      this._tolCancel.hidden = true;
       return Promise.resolve(null);
     };
     if (!api || typeof api.Tolerance !== "function" || !this._design) return fail("The engine is not ready yet.");
@@ -262,7 +271,8 @@ Object.assign(StagewrightCalc.prototype, {
         if (token !== this._tolToken) return resolve(null);
         const t0 = performance.now();
         // About 12 ms of trials a turn, so the page keeps answering.
-        while (next < n && performance.now() - t0 < 12) {
+        const cancelled = this._tolCancelled;
+        while (!cancelled && next < n && performance.now() - t0 < 12) {
           const c0 = performance.now();
           next += t.run_chunk(next, chunk);
           timing.trials += performance.now() - c0;
@@ -270,21 +280,27 @@ Object.assign(StagewrightCalc.prototype, {
           const spent = performance.now() - t0;
           if (spent < 4) chunk = Math.min(chunk * 2, 5000);
         }
-        if (next < n) {
+        if (next < n && !cancelled) {
           if (performance.now() - started > 200) {
             this._tolProgress.hidden = false;
+            this._tolCancel.hidden = false;
             this._tolProgress.value = next / n;
           }
           setTimeout(step, 0);
           return;
         }
         this._tolProgress.hidden = true;
+        this._tolCancel.hidden = true;
         const s0 = performance.now();
         const summary = t.summary();
         timing.summary = performance.now() - s0;
         this._renderMonteCarlo(summary);
-        this.toleranceResult = { report, summary, ms: performance.now() - started, timing };
-        this._announce(`Monte Carlo yield ${yieldText(summary.yield)} of ${summary.completed} trials.`);
+        this.toleranceResult = { report, summary, ms: performance.now() - started, timing, cancelled };
+        const note = cancelled ? ` Cancelled after ${summary.completed} of ${n} trials.` : "";
+        if (cancelled) {
+          this._tolOut.prepend(h("p", { class: "tol-cancelled", role: "status" }, `Cancelled after ${summary.completed} of ${n} trials: the figures below are for those.`));
+        }
+        this._announce(`Monte Carlo yield ${yieldText(summary.yield)} of ${summary.completed} trials.${note}`);
         resolve(this.toleranceResult);
       };
       setTimeout(step, 0);

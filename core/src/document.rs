@@ -50,6 +50,25 @@ pub(crate) fn echo(text: &str) -> String {
     }
 }
 
+/// The text of a file's bytes, which must be UTF-8 (as JSON text is).
+///
+/// # Errors
+/// [`ErrorKind::Document`] naming `file`, with the offset and value of the
+/// first byte that is not UTF-8, so that a file saved in another encoding
+/// is named as such rather than read with its characters replaced.
+pub fn utf8_text(bytes: &[u8]) -> Result<&str> {
+    core::str::from_utf8(bytes).map_err(|e| {
+        let at = e.valid_up_to();
+        let mut reason = String::new();
+        let _ = write!(
+            reason,
+            "not UTF-8 text: byte 0x{:02X} at offset {at} is not valid UTF-8; a design file is JSON text, saved as UTF-8",
+            bytes[at]
+        );
+        Error::new("file", ErrorKind::Document { reason })
+    })
+}
+
 /// `prefix.key`, or `key` at the top level.
 pub(crate) fn path(prefix: &str, key: &str) -> String {
     if prefix.is_empty() {

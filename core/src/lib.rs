@@ -113,7 +113,7 @@ pub use design_file::{
     MAX_TITLE,
 };
 #[cfg(feature = "serde")]
-pub use document::MAX_DEPTH;
+pub use document::{utf8_text, MAX_DEPTH};
 pub use error::{Error, ErrorKind, Result, MAX_ECHO};
 pub use eseries::{ESeries, SeriesLookup};
 pub use format::{format_si, format_value};

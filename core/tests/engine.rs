@@ -27,6 +27,7 @@
 //! are compared to 1e-12 relative (rounding); the mirror to 1e-12 (the same
 //! equations in the mirrored frame); anything else says why beside it.
 
+use stagewright::utf8_text;
 use stagewright::{
     analyze, analyze_with, preset, AcNetwork, Band, Design, Edge, Error, ErrorKind, Midband,
     MonteCarlo, Options, Parts, Polarity, Region, Requirements, Stage, StageKind, Temperature,
@@ -541,6 +542,11 @@ fn limits_documents_and_monte_carlo() {
     // Echoed text is cut to MAX_ECHO characters and an ellipsis.
     let e = Design::from_json(&design(&format!(r#", "{}": 1"#, long(100_000)))).unwrap_err();
     assert_eq!(e.field().chars().count(), MAX_ECHO + 1, "{}", e.field());
+    // A file's bytes must be UTF-8: the first bad byte is named.
+    assert_eq!(utf8_text("25 °C".as_bytes()), Ok("25 °C"));
+    let e = utf8_text(b"{\"title\": \"25 \xb0C\"}").unwrap_err();
+    assert_eq!(e.field(), "file");
+    assert!(e.to_string().contains("byte 0xB0 at offset 14"), "{e}");
     // Monte Carlo: at most MAX_TRIALS, refused above with the field named.
     let s = example();
     let t = Tolerances::default();

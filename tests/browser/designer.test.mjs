@@ -166,6 +166,38 @@ test("designer: the same seed gives the command line's Monte Carlo", async () =>
   }
 });
 
+test("designer: a long Monte Carlo run can be cancelled, and the trial limit is the command line's", async () => {
+  const b = await launch();
+  try {
+    const page = await open(b);
+    const file = path.join(root, "examples", "transducer-gain-stage.json");
+    // Over the limit: the core's message, as `check --monte-carlo 2000000` gives it.
+    const over = await page.evaluate(async (text) => {
+      const el = document.querySelector("stagewright-calc");
+      el.design = text;
+      el.shadowRoot.querySelector("[data-view=tolerance]").open = true;
+      await el.runTolerance(2000000, 1);
+      return el.shadowRoot.querySelector(".view-tol .spec-error").textContent;
+    }, readFileSync(file, "utf8"));
+    assert.match(over, /trials must be between 1 and 1000000/);
+    // A million trials (several seconds): the page keeps answering, shows
+    // Cancel, and a click stops the run with the trials done summarised.
+    const run = page.evaluate(() => document.querySelector("stagewright-calc").runTolerance(1000000, 1));
+    const cancel = page.locator("stagewright-calc [data-action=cancel-tolerance]");
+    await cancel.waitFor({ state: "visible", timeout: 10000 });
+    await cancel.click();
+    const got = await run;
+    assert.equal(got.cancelled, true);
+    assert.ok(got.summary.completed > 0 && got.summary.completed < 1000000, `completed ${got.summary.completed}`);
+    assert.equal(await cancel.isVisible(), false);
+    const note = await page.locator("stagewright-calc .tol-cancelled").textContent();
+    assert.match(note, /^Cancelled after \d+ of 1000000 trials/);
+    assert.deepEqual(b.errors, []);
+  } finally {
+    await b.close();
+  }
+});
+
 test("designer: the script alone, under a strict CSP, has both views", async () => {
   const ORIGIN = "https://wiki.example";
   const script = readFileSync(designerScriptPath);

@@ -24,6 +24,9 @@ const design = (title, extra = {}) => ({
   ...extra,
 });
 
+/** The parts of an emitter follower (no re_bypassed or c_emitter; rc limits the collector current). */
+const FOLLOWER_PARTS = { r1: "47k", r2: "47k", rc: "1k", re: "2k2", rs: "600", rl: "10k", c_in: "1u", c_out: "10u" };
+
 const b64url = (obj) => Buffer.from(JSON.stringify(obj)).toString("base64url");
 
 /** A title that would run script if it were ever inserted as HTML. */
@@ -72,7 +75,7 @@ describe("embedding dist/stagewright.js", () => {
           '<script src="/stagewright.js"></script><script src="/stagewright.js"></script>',
           `<stagewright-calc id="first"><script type="application/json">${JSON.stringify(design("First stage"))}</script></stagewright-calc>` +
             `<p>The placeholder below is what a wiki that strips unknown tags keeps:</p>` +
-            `<div data-stagewright data-design="${b64url(design("Second stage", { stage: "common-collector" }))}"></div>` +
+            `<div data-stagewright data-design="${b64url(design("Second stage", { stage: "common-collector", parts: FOLLOWER_PARTS }))}"></div>` +
             '<script src="/stagewright.js"></script>',
         ),
       },
@@ -247,7 +250,14 @@ describe("embedding dist/stagewright.js", () => {
       const el = document.querySelector("#slot stagewright-calc");
       const events = [];
       document.addEventListener("stagewright-design", (e) => events.push({ bubbles: e.bubbles, composed: e.composed, title: e.detail.design.title }));
-      el.design = { format: "stagewright/1", title: "Set by script", stage: "common-base", supply: 5, parts: { rc: "1k" } };
+      el.design = {
+        format: "stagewright/1",
+        title: "Set by script",
+        stage: "common-base",
+        supply: 5,
+        transistor: { preset: "rf-npn" },
+        parts: { r1: "10k", r2: "4k7", rc: "1k", re: "1k", c_base: "100n" },
+      };
       // Moving the element (as a router would) keeps it working.
       const host = document.createElement("section");
       document.body.append(host);
@@ -276,6 +286,12 @@ describe("embedding dist/stagewright.js", () => {
     await p.goto(`${ORIGIN}/twice.html`);
     await understood(p, "#first");
     await p.locator("#first details.share > summary").click();
+    // The panel fills its snippets on the details' toggle event, a task
+    // after the click.
+    await p.waitForFunction(() => {
+      const t = document.querySelector("#first").shadowRoot.querySelector("textarea.snippet");
+      return t && t.value.length > 0;
+    });
     const snippets = await p.evaluate(() => {
       const root = document.querySelector("#first").shadowRoot;
       return {

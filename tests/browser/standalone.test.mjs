@@ -1,6 +1,6 @@
 // dist/stagewright.html opened from file:// in Debian's Chromium: no
 // network, value fields, inline errors, snapping, the diagram, the address
-// fragment, user text shown as text, plots from the engine, timing,
+// fragment, user text shown as text, plots from the engine,
 // screenshots of each view.
 
 import assert from "node:assert/strict";
@@ -9,7 +9,6 @@ import path from "node:path";
 import { after, before, describe, test } from "node:test";
 import { fileURLToPath } from "node:url";
 
-import { measure, summarize } from "./bench.mjs";
 import { htmlUrl, launch, networkRequests, root, screenshot, waitReady, waitReport } from "./helpers.mjs";
 
 const here = path.dirname(fileURLToPath(import.meta.url));
@@ -159,14 +158,6 @@ describe("standalone page from file://", () => {
     assert.equal(errors, 0, "every plot drew");
     await page.locator('stagewright-calc figure[data-plot="gain"] summary').click();
     await page.waitForFunction(() => !document.querySelector("stagewright-calc").shadowRoot.querySelector('figure[data-plot="gain"] details').open);
-  });
-
-  test("an edit is recomputed and redrawn quickly", async () => {
-    const s = summarize(await measure(page, 41));
-    console.log(`# recompute + redraw after an edit: median ${s.median.toFixed(1)} ms, p95 ${s.p95.toFixed(1)} ms`);
-    // The budget is 16 ms (bench.mjs reports it); twice that here, so a
-    // busy CI machine does not fail the run while a regression still does.
-    assert.ok(s.median < 32, `median ${s.median} ms`);
   });
 
   test("screenshots: standalone (light) and print", async () => {

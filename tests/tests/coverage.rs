@@ -441,6 +441,7 @@ const COVERAGE: &[(&str, Covered)] = &[
     ("MAX_NOTES", Api("limits_documents_and_monte_carlo")),
     ("MAX_TITLE", Api("limits_documents_and_monte_carlo")),
     ("MAX_TRIALS", Api("limits_documents_and_monte_carlo")),
+    ("utf8_text", Api("limits_documents_and_monte_carlo")),
     (
         "Edge",
         Reference("nodal", "no_passband_agrees_with_independent_nodal_solve"),

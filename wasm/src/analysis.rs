@@ -12,12 +12,10 @@
 //! design again and cost bytes the page's size budget does not have; their
 //! results are `compute(…).sweep` and `compute(…).curves`.)
 
-use serde_json::Value;
-use stagewright::{load_lines, Analysis, Design, DesignDocument, Report, SweepTable, PRESETS};
+use stagewright::{load_lines, Analysis, Design, Report, SweepTable, PRESETS};
 use wasm_bindgen::prelude::*;
-use wasm_bindgen::JsCast;
 
-use crate::js::{core_error, field_error, Builder};
+use crate::js::{core_error, field_error, text, Builder};
 
 /// Characteristics drawn under the load lines. Even, so that the
 /// quiescent base current is one of them (see `stagewright::load_lines`).
@@ -28,74 +26,40 @@ const CURVE_POINTS: usize = 48;
 const DEFAULT_PER_DECADE: f64 = 20.0;
 
 /// Reads and analyses a design file.
-///
-/// The JSON text is parsed by the browser (`JSON.parse`) and the result
-/// goes through the core's reader, `DesignDocument::from_value` and
-/// `Design::try_from`: the very path of `Design::from_json` after its JSON
-/// parse, so every message about a key or a value is the command line's.
-/// Only a JSON syntax error reads differently (the browser's wording).
-/// Leaving serde_json's parser out of the module saves about 25 KB.
-fn solve(design_json: &str) -> Result<(Design, Analysis), JsValue> {
+fn solve(design_json: &JsValue) -> Result<(Design, Analysis), JsValue> {
     let design = read_design(design_json)?;
     let analysis = design.analyze().map_err(|e| core_error(&e))?;
     Ok((design, analysis))
 }
 
-/// Reads and validates a design file (no analysis).
-pub(crate) fn read_design(design_json: &str) -> Result<Design, JsValue> {
-    let value = read_json(design_json)?;
-    DesignDocument::from_value(&value)
-        .and_then(Design::try_from)
+/// Reads and validates a design file (no analysis) with the core's own
+/// reader, `Design::from_json`: the JSON text itself, never an object the
+/// browser parsed, so every message (a syntax error, a key given twice,
+/// nesting too deep, a value out of range) is the command line's.
+pub(crate) fn read_design(design_json: &JsValue) -> Result<Design, JsValue> {
+    let text = text(design_json, "design")?;
+    Design::from_json(&text).map_err(|e| core_error(&e))
+}
+
+/// Reads and validates a design file without analysing it, with the
+/// command line's reader.
+///
+/// JS: `read_design(designJson: string) -> undefined`; throws `{field,
+/// message}` with the command line's message.
+#[wasm_bindgen(js_name = read_design)]
+pub fn read_design_text(design_json: JsValue) -> Result<(), JsValue> {
+    read_design(&design_json).map(|_| ())
+}
+
+/// The text of a file's bytes, which must be UTF-8 (`stagewright::utf8_text`,
+/// the command line's check).
+///
+/// JS: `utf8_text(bytes: Uint8Array) -> string`; throws `{field, message}`.
+#[wasm_bindgen]
+pub fn utf8_text(bytes: &[u8]) -> Result<String, JsValue> {
+    stagewright::utf8_text(bytes)
+        .map(String::from)
         .map_err(|e| core_error(&e))
-}
-
-/// JSON text as a `serde_json::Value`, parsed by the browser.
-pub(crate) fn read_json(text: &str) -> Result<Value, JsValue> {
-    let parsed = js_sys::JSON::parse(text).map_err(|e| {
-        let why = e
-            .dyn_ref::<js_sys::Error>()
-            .map(|e| String::from(e.message()))
-            .unwrap_or_default();
-        field_error("", &["the design is not valid JSON: ", &why].concat())
-    })?;
-    Ok(json_value(&parsed))
-}
-
-/// A value made by `JSON.parse` as a `serde_json::Value`. Whole numbers
-/// become integers, as serde_json reads `12`; the others stay `f64`, the
-/// same correctly rounded value serde_json reads from the text.
-fn json_value(v: &JsValue) -> Value {
-    if let Some(s) = v.as_string() {
-        Value::String(s)
-    } else if let Some(x) = v.as_f64() {
-        const EXACT: f64 = 9_007_199_254_740_992.0; // 2^53
-        if x.fract() == 0.0 && x.abs() <= EXACT && !(x == 0.0 && x.is_sign_negative()) {
-            Value::from(x as i64)
-        } else {
-            serde_json::Number::from_f64(x).map_or(Value::Null, Value::Number)
-        }
-    } else if let Some(b) = v.as_bool() {
-        Value::Bool(b)
-    } else if js_sys::Array::is_array(v) {
-        Value::Array(
-            js_sys::Array::from(v)
-                .iter()
-                .map(|x| json_value(&x))
-                .collect(),
-        )
-    } else if let Some(o) = v.dyn_ref::<js_sys::Object>() {
-        let mut map = serde_json::Map::new();
-        for entry in js_sys::Object::entries(o).iter() {
-            let pair = js_sys::Array::from(&entry);
-            map.insert(
-                pair.get(0).as_string().unwrap_or_default(),
-                json_value(&pair.get(1)),
-            );
-        }
-        Value::Object(map)
-    } else {
-        Value::Null
-    }
 }
 
 /// The report as a plain object: the JSON document of
@@ -225,8 +189,8 @@ fn curves(design: &Design, analysis: &Analysis) -> JsValue {
 ///   ic}, swing_limits: [{label, vce, ic}]}` (`vce` and `ic` of lines are
 ///   `Float64Array`s).
 #[wasm_bindgen]
-pub fn compute(design_json: &str, points_per_decade: f64) -> Result<JsValue, JsValue> {
-    let (design, analysis) = solve(design_json)?;
+pub fn compute(design_json: JsValue, points_per_decade: f64) -> Result<JsValue, JsValue> {
+    let (design, analysis) = solve(&design_json)?;
     let out = Builder::new();
     out.set("report", report(&design, &analysis)?);
     out.set("sweep", sweep(&analysis, points_per_decade)?);
@@ -239,8 +203,8 @@ pub fn compute(design_json: &str, points_per_decade: f64) -> Result<JsValue, JsV
 ///
 /// JS: `analyze(designJson: string) -> object`; throws `{field, message}`.
 #[wasm_bindgen]
-pub fn analyze(design_json: &str) -> Result<JsValue, JsValue> {
-    let (design, analysis) = solve(design_json)?;
+pub fn analyze(design_json: JsValue) -> Result<JsValue, JsValue> {
+    let (design, analysis) = solve(&design_json)?;
     report(&design, &analysis)
 }
 
@@ -266,8 +230,9 @@ pub fn presets() -> JsValue {
 /// JS: `preset_data(name: string) -> {polarity, hfe, …}`; throws
 /// `{field: "transistor.preset", message}` for an unknown name.
 #[wasm_bindgen]
-pub fn preset_data(name: &str) -> Result<JsValue, JsValue> {
-    let t = stagewright::preset(name).map_err(|e| core_error(&e))?;
+pub fn preset_data(name: JsValue) -> Result<JsValue, JsValue> {
+    let name = text(&name, "transistor.preset")?;
+    let t = stagewright::preset(&name).map_err(|e| core_error(&e))?;
     let o = Builder::new();
     o.set("polarity", t.polarity.name());
     let values = [

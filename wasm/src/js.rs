@@ -11,6 +11,28 @@ pub(crate) fn field_error(field: &str, message: &str) -> JsValue {
     o.into()
 }
 
+/// The text of a string argument, or an error naming `field` when the
+/// caller handed over something else (a number, `true`, an object): every
+/// export takes its text arguments this way, so that no value a page or a
+/// shared link can produce reaches the engine as anything but a string.
+pub(crate) fn text(value: &JsValue, field: &str) -> Result<String, JsValue> {
+    value.as_string().ok_or_else(|| {
+        let got = if value.is_undefined() || value.is_null() {
+            "nothing"
+        } else if value.as_bool().is_some() {
+            "true or false"
+        } else if value.as_f64().is_some() {
+            "a number"
+        } else {
+            "an object"
+        };
+        field_error(
+            field,
+            &[field, " must be text (a string), got ", got].concat(),
+        )
+    })
+}
+
 /// The JavaScript form of a core error.
 pub(crate) fn core_error(err: &stagewright::Error) -> JsValue {
     field_error(err.field(), &err.to_string())

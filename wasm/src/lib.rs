@@ -32,7 +32,7 @@ mod ticks;
 mod tolerance;
 mod values;
 
-pub use analysis::{analyze, compute, preset_data, presets};
+pub use analysis::{analyze, compute, preset_data, presets, read_design_text, utf8_text};
 pub use plot::{plot_frequency, plot_xy};
 #[cfg(feature = "extras")]
 pub use spec::design_from_spec;

@@ -1,15 +1,15 @@
 //! The "from requirements" view: a specification file designed by the
 //! core, as `stagewright design SPEC --json` prints it.
 //!
-//! Glue only: the core reads the specification (`SpecDocument::from_value`,
-//! `SpecFile::try_from`) and designs it (`SpecFile::design_result`, the
+//! Glue only: the core reads the specification (`SpecFile::from_json`,
+//! the command line's reader) and designs it (`SpecFile::design_result`, the
 //! function behind the command); this module hands the result over.
 
-use stagewright::{SpecDocument, SpecFile};
+use stagewright::SpecFile;
 use wasm_bindgen::prelude::*;
 
-use crate::analysis::{read_json, to_js};
-use crate::js::core_error;
+use crate::analysis::to_js;
+use crate::js::{core_error, text};
 
 /// Designs a specification file (format `stagewright-spec/1`, JSON text).
 ///
@@ -20,11 +20,9 @@ use crate::js::core_error;
 /// message, for an invalid file or a specification that cannot be met
 /// (then `field` names the requirement, such as `requirements.min_swing`).
 #[wasm_bindgen]
-pub fn design_from_spec(spec_json: &str) -> Result<JsValue, JsValue> {
-    let value = read_json(spec_json)?;
-    let spec = SpecDocument::from_value(&value)
-        .and_then(SpecFile::try_from)
-        .map_err(|e| core_error(&e))?;
+pub fn design_from_spec(spec_json: JsValue) -> Result<JsValue, JsValue> {
+    let spec =
+        SpecFile::from_json(&text(&spec_json, "specification")?).map_err(|e| core_error(&e))?;
     let (result, _) = spec.design_result().map_err(|e| core_error(&e))?;
     to_js(&result)
 }

@@ -11,7 +11,7 @@ use stagewright::{worst_case, worst_checks, MonteCarlo};
 use wasm_bindgen::prelude::*;
 
 use crate::analysis::{read_design, to_js};
-use crate::js::{core_error, field_error, Builder};
+use crate::js::{core_error, field_error, text, Builder};
 
 /// The tolerance analysis of one design: the worst case and the
 /// requirements judged at their worst vertex at once, the Monte Carlo
@@ -31,9 +31,9 @@ impl Tolerance {
     /// Reads the design, solves the vertices of its tolerance box and
     /// prepares `trials` Monte Carlo trials from `seed`.
     #[wasm_bindgen(constructor)]
-    pub fn new(design_json: &str, trials: f64, seed: &str) -> Result<Tolerance, JsValue> {
-        let design = read_design(design_json)?;
-        let seed: u64 = seed.trim().parse().map_err(|_| {
+    pub fn new(design_json: JsValue, trials: f64, seed: JsValue) -> Result<Tolerance, JsValue> {
+        let design = read_design(&design_json)?;
+        let seed: u64 = text(&seed, "seed")?.trim().parse().map_err(|_| {
             field_error(
                 "seed",
                 "the seed must be a whole number from 0 to 18446744073709551615",

@@ -3,7 +3,7 @@
 use stagewright::ESeries;
 use wasm_bindgen::prelude::*;
 
-use crate::js::{core_error, Builder};
+use crate::js::{self, core_error, Builder};
 
 /// Reads `text` as a value of `field` in `unit` (core notation: `4k7`, `10u`,
 /// `100 nF`, `2.2e3`).
@@ -11,16 +11,19 @@ use crate::js::{core_error, Builder};
 /// JS: `parse_value(field: string, text: string, unit: string): number`;
 /// throws `{field, message}` when the text cannot be read.
 #[wasm_bindgen]
-pub fn parse_value(field: &str, text: &str, unit: &str) -> Result<f64, JsValue> {
-    stagewright::parse_value_field(field, text, unit).map_err(|e| core_error(&e))
+pub fn parse_value(field: JsValue, text: JsValue, unit: JsValue) -> Result<f64, JsValue> {
+    let field = js::text(&field, "field")?;
+    let value = js::text(&text, &field)?;
+    let unit = js::text(&unit, "unit")?;
+    stagewright::parse_value_field(&field, &value, &unit).map_err(|e| core_error(&e))
 }
 
 /// Formats `value` (SI base units) with an SI prefix: `4.7 kΩ`.
 ///
 /// JS: `format_si(value: number, unit: string): string`.
 #[wasm_bindgen]
-pub fn format_si(value: f64, unit: &str) -> String {
-    stagewright::format_si(value, unit)
+pub fn format_si(value: f64, unit: JsValue) -> String {
+    stagewright::format_si(value, &unit.as_string().unwrap_or_default())
 }
 
 /// Looks `value` up in the standard series named `series` (`"E24"`).
@@ -30,8 +33,9 @@ pub fn format_si(value: f64, unit: &str) -> String {
 /// no standard neighbour, e.g. zero); throws `{field: "series", message}` for
 /// an unknown series name.
 #[wasm_bindgen]
-pub fn series_lookup(series: &str, value: f64) -> Result<JsValue, JsValue> {
-    let s = ESeries::parse(series).map_err(|e| core_error(&e.within("series")))?;
+pub fn series_lookup(series: JsValue, value: f64) -> Result<JsValue, JsValue> {
+    let series = js::text(&series, "series")?;
+    let s = ESeries::parse(&series).map_err(|e| core_error(&e.within("series")))?;
     match s.lookup(value) {
         Some(l) => {
             let o = Builder::new();

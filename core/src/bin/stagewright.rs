@@ -274,14 +274,10 @@ fn read_text(file: &str) -> Result<String, Problem> {
             Problem::Io(format!("cannot read the file: {e}{hint}"))
         })?
     };
-    String::from_utf8(bytes).map_err(|e| {
-        let at = e.utf8_error().valid_up_to();
-        let byte = e.as_bytes()[at];
-        Problem::Io(format!(
-            "the file is not UTF-8 text: byte 0x{byte:02X} at offset {at} is not valid UTF-8; \
-             a design file is JSON text, saved as UTF-8"
-        ))
-    })
+    match stagewright::utf8_text(&bytes) {
+        Ok(_) => Ok(String::from_utf8(bytes).unwrap_or_default()),
+        Err(e) => Err(Problem::Design(e)),
+    }
 }
 
 /// Reads, validates and analyses one design file.
