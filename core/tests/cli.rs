@@ -18,6 +18,9 @@
 //!   --worst-case` and `--monte-carlo`: exit codes, JSON shapes, seeds.
 //! - `readme_shows_*`, `readme_documents_*`: the README quotes the real
 //!   `design` output and documents every key of the new JSON documents.
+//! - `golden_documents_are_unchanged`: the documents of `analyze`, `check
+//!   --worst-case --monte-carlo`, `design` and `sweep` on the examples,
+//!   byte for byte as kept in `tests/golden/`.
 
 use std::io::Write;
 use std::path::{Path, PathBuf};
@@ -1149,5 +1152,106 @@ fn readme_documents_the_design_and_tolerance_json_keys() {
     }
     for spec in specs() {
         assert!(readme.contains(&spec), "the README shows {spec}");
+    }
+}
+
+/// The command lines whose output is kept in `tests/golden/` (the name of
+/// each file, and the arguments).
+fn golden_runs() -> Vec<(String, Vec<String>)> {
+    let mut runs = Vec::new();
+    let names = |dir: &str, suffix: &str| -> Vec<String> {
+        let mut v: Vec<String> = std::fs::read_dir(root().join(dir))
+            .expect("the folder exists")
+            .filter_map(|e| e.ok())
+            .map(|e| e.file_name().to_string_lossy().into_owned())
+            .filter(|n| n.ends_with(suffix))
+            .collect();
+        v.sort();
+        v
+    };
+    for file in names("examples", ".json") {
+        let stem = file.trim_end_matches(".json");
+        let path = format!("examples/{file}");
+        runs.push((
+            format!("{stem}.analyze.json"),
+            vec!["analyze".into(), "--json".into(), path.clone()],
+        ));
+        runs.push((
+            format!("{stem}.analyze.txt"),
+            vec!["analyze".into(), path.clone()],
+        ));
+        runs.push((
+            format!("{stem}.check.json"),
+            [
+                "check",
+                "--json",
+                "--worst-case",
+                "--monte-carlo",
+                "300",
+                "--seed",
+                "5",
+                &path,
+            ]
+            .map(String::from)
+            .to_vec(),
+        ));
+    }
+    for file in names("examples/specs", ".spec.json") {
+        let stem = file.trim_end_matches(".spec.json");
+        let path = format!("examples/specs/{file}");
+        runs.push((
+            format!("{stem}.design.json"),
+            vec!["design".into(), "--json".into(), path.clone()],
+        ));
+        runs.push((format!("{stem}.design.txt"), vec!["design".into(), path]));
+    }
+    runs.push((
+        "transducer-gain-stage.sweep.csv".into(),
+        [
+            "sweep",
+            "--from",
+            "10",
+            "--to",
+            "1e6",
+            "--points",
+            "21",
+            "--csv",
+            "examples/transducer-gain-stage.json",
+        ]
+        .map(String::from)
+        .to_vec(),
+    ));
+    runs
+}
+
+#[test]
+fn golden_documents_are_unchanged() {
+    // The documents the command line writes, byte for byte, as kept in
+    // tests/golden/: a change to the code's structure must not change them
+    // (a change on purpose regenerates them with STAGEWRIGHT_BLESS=1 and
+    // the diff is reviewed).
+    let dir = root().join("tests").join("golden");
+    let bless = std::env::var_os("STAGEWRIGHT_BLESS").is_some();
+    let runs = golden_runs();
+    assert!(runs.len() >= 17, "{} golden runs", runs.len());
+    for (name, args) in runs {
+        let args: Vec<&str> = args.iter().map(String::as_str).collect();
+        let o = run(&args, "");
+        assert!(
+            matches!(o.status.code(), Some(0 | 1)),
+            "{name}: {}",
+            stderr(&o)
+        );
+        let path = dir.join(&name);
+        if bless {
+            std::fs::create_dir_all(&dir).expect("tests/golden can be made");
+            std::fs::write(&path, &o.stdout).expect("the golden file can be written");
+            continue;
+        }
+        let want = std::fs::read(&path).unwrap_or_else(|e| panic!("{}: {e}", path.display()));
+        assert!(
+            o.stdout == want,
+            "{name}: the output differs from tests/golden/{name} (run with STAGEWRIGHT_BLESS=1 after a change on purpose)"
+        );
     }
 }
