@@ -121,82 +121,34 @@
 //! when the design has one, is written in full).
 
 use alloc::borrow::ToOwned;
-use alloc::string::{String, ToString};
+use alloc::string::String;
 use alloc::vec::Vec;
-use core::fmt::Write as _;
 
 use serde::{Deserialize, Deserializer, Serialize};
-use serde_json::{Map, Value};
+use serde_json::Value;
 
 use crate::analysis::{analyze, Analysis};
 use crate::constants::Temperature;
-use crate::document::{self, echo, path};
-use crate::error::{non_negative, positive, Error, ErrorKind, Result};
-use crate::presets::preset;
+use crate::document::{
+    self, block, check_design_format, file_celsius, free_text, leaf, object, optional, parse_error,
+    path, required, requirements_from, share, stage_kind, text_at, transistor_document,
+    transistor_from, typed_at, RequirementsDocument, Schema, TransistorDocument, Typed,
+    DESIGN_FORMAT, EXPECTED_TEXT, MAX_NOTES, MAX_TITLE,
+};
+use crate::error::{Error, Result};
 #[cfg(doc)]
 use crate::presets::PRESETS;
 use crate::ratings::Check;
 use crate::requirements::Requirements;
 use crate::stage::{Parts, Stage, StageKind, DEFAULT_RESISTOR_RATING};
 use crate::tolerance::Tolerances;
-use crate::transistor::{Polarity, TransistorData, DEFAULT_BETA_REVERSE, DEFAULT_XTB};
+#[cfg(doc)]
+use crate::transistor::TransistorData;
+#[cfg(doc)]
 use crate::value::parse_value_field;
-
-/// The format name and version this build writes: `stagewright/1`.
-pub const DESIGN_FORMAT: &str = "stagewright/1";
-
-/// Every format version this build reads.
-pub const DESIGN_FORMATS: &[&str] = &[DESIGN_FORMAT];
 
 /// Ambient temperature when the file gives none, °C.
 pub const DEFAULT_AMBIENT_CELSIUS: f64 = 25.0;
-
-/// A value as typed in a design file: a number in SI base units, or text
-/// in the notation of [`parse_value_field`] (`"4k7"`, `"100 nF"`).
-#[derive(Debug, Clone, PartialEq, Serialize)]
-#[serde(untagged)]
-pub enum Typed {
-    /// A JSON number, already in SI base units.
-    Number(f64),
-    /// A JSON string, read with its unit when the design is built.
-    Text(String),
-}
-
-impl Typed {
-    /// The value of `field` in `unit`: the number itself, or the text read
-    /// by [`parse_value_field`].
-    ///
-    /// # Errors
-    /// [`ErrorKind::Parse`] naming `field` for text that is not a value, and
-    /// [`ErrorKind::OutOfRange`] for a number that is not finite.
-    pub fn value(&self, field: &str, unit: &'static str) -> Result<f64> {
-        match self {
-            Typed::Number(x) if x.is_finite() => Ok(*x),
-            Typed::Number(x) => Err(Error::out_of_range(field, *x, unit, "a finite number")),
-            Typed::Text(text) => parse_value_field(field, text, unit),
-        }
-    }
-}
-
-impl From<f64> for Typed {
-    fn from(x: f64) -> Typed {
-        Typed::Number(x)
-    }
-}
-
-impl From<&str> for Typed {
-    fn from(text: &str) -> Typed {
-        Typed::Text(text.to_owned())
-    }
-}
-
-/// What a value that is neither a number nor a string is told.
-const EXPECTED_VALUE: &str =
-    "a number in SI base units such as 4700, or a string such as \"4k7\" or \"100 nF\"";
-/// What a text key that holds something else is told.
-pub(crate) const EXPECTED_TEXT: &str = "text in double quotes";
-/// What a block that is not an object is told.
-const EXPECTED_OBJECT: &str = "an object of keys and values in braces, { ... }";
 
 /// The top-level keys of version 1.
 const TOP_KEYS: &[&str] = &[
@@ -211,101 +163,6 @@ const TOP_KEYS: &[&str] = &[
     "requirements",
     "tolerances",
 ];
-
-/// Defines a block of a document: a struct of optional text and typed
-/// values, its keys as dotted paths, and its reader (which checks the keys
-/// against a [`Schema`]). The specification file uses it too.
-macro_rules! block {
-    (
-        $(#[$meta:meta])*
-        $name:ident in $prefix:literal {
-            text: [$($(#[$tm:meta])* $t:ident),* $(,)?],
-            values: [$($(#[$vm:meta])* $v:ident),* $(,)?] $(,)?
-        }
-    ) => {
-        $(#[$meta])*
-        #[derive(Debug, Clone, PartialEq, Default, ::serde::Serialize)]
-        pub struct $name {
-            $(
-                $(#[$tm])*
-                #[serde(skip_serializing_if = "Option::is_none")]
-                pub $t: Option<::alloc::string::String>,
-            )*
-            $(
-                $(#[$vm])*
-                #[serde(skip_serializing_if = "Option::is_none")]
-                pub $v: Option<$crate::design_file::Typed>,
-            )*
-        }
-
-        impl $name {
-            /// Every key of this block, as a dotted path from the top of the file.
-            pub const KEYS: &'static [&'static str] = &[
-                $(concat!($prefix, ".", stringify!($t)),)*
-                $(concat!($prefix, ".", stringify!($v)),)*
-            ];
-
-            pub(crate) fn read(
-                value: &::serde_json::Value,
-                schema: &$crate::design_file::Schema,
-            ) -> $crate::error::Result<Self> {
-                let map = $crate::design_file::object(value, $prefix)?;
-                schema.check_keys(map, $prefix)?;
-                Ok($name {
-                    $($t: $crate::design_file::text_at(map, $prefix, stringify!($t))?,)*
-                    $($v: $crate::design_file::typed_at(map, $prefix, stringify!($v))?,)*
-                })
-            }
-        }
-    };
-}
-pub(crate) use block;
-
-block! {
-    /// The `transistor` block as typed.
-    TransistorDocument in "transistor" {
-        text: [
-            /// A preset name; the other keys override its values.
-            preset,
-            /// `"npn"` or `"pnp"`.
-            polarity,
-        ],
-        values: [
-            /// Typical DC current gain.
-            hfe,
-            /// Lowest DC current gain of the gain group.
-            hfe_min,
-            /// Highest DC current gain of the gain group.
-            hfe_max,
-            /// Base–emitter voltage magnitude at `vbe_at_ic`, V.
-            vbe,
-            /// Collector current at which `vbe` is stated, A.
-            vbe_at_ic,
-            /// Early voltage, V.
-            early_voltage,
-            /// Transition frequency, Hz.
-            ft,
-            /// Output capacitance, F.
-            cob,
-            /// Collector–base voltage at which `cob` is stated, V.
-            cob_vcb,
-            /// Base spreading resistance, Ω.
-            rbb,
-            /// Saturation voltage magnitude, V.
-            vce_sat,
-            /// Breakdown voltage VCEO, V.
-            vceo_max,
-            /// Largest continuous collector current, A.
-            ic_max,
-            /// Dissipation rating at 25 °C, W.
-            ptot_max,
-            /// Thermal resistance junction to ambient, K/W.
-            rth_ja,
-            /// Largest junction temperature, °C.
-            tj_max,
-        ],
-    }
-}
 
 block! {
     /// The `parts` block as typed.
@@ -336,33 +193,6 @@ block! {
             c_base,
             /// Power rating of every resistor, W.
             resistor_rating,
-        ],
-    }
-}
-
-block! {
-    /// The `requirements` block as typed.
-    RequirementsDocument in "requirements" {
-        text: [],
-        values: [
-            /// Smallest |voltage gain|, dB.
-            min_voltage_gain_db,
-            /// Largest |voltage gain|, dB.
-            max_voltage_gain_db,
-            /// Smallest input impedance, Ω.
-            min_input_impedance,
-            /// Largest output impedance, Ω.
-            max_output_impedance,
-            /// Smallest symmetric peak swing at the load, V.
-            min_swing,
-            /// Highest lower corner, Hz.
-            max_f_low,
-            /// Lowest upper corner, Hz.
-            min_f_high,
-            /// Largest supply current, A.
-            max_supply_current,
-            /// Largest junction temperature, °C.
-            max_junction_temperature,
         ],
     }
 }
@@ -468,7 +298,7 @@ impl DesignDocument {
             Some(Value::String(s)) => s.clone(),
             Some(other) => return Err(parse_error("format", other, EXPECTED_TEXT)),
         };
-        check_format(&format)?;
+        check_design_format(&format)?;
         DESIGN_SCHEMA.check_keys(map, "")?;
         let block = |key: &str| map.get(key).filter(|v| !v.is_null());
         let schema = &DESIGN_SCHEMA;
@@ -650,7 +480,7 @@ impl TryFrom<DesignDocument> for Design {
     /// Reads every value in its unit, applies the preset and the defaults,
     /// and validates the stage.
     fn try_from(doc: DesignDocument) -> Result<Design> {
-        check_format(&doc.format)?;
+        check_design_format(&doc.format)?;
         let kind = stage_kind(doc.stage.as_deref())?;
         let supply = required(
             &doc.supply,
@@ -704,91 +534,6 @@ impl TryFrom<DesignDocument> for Design {
 // ---------------------------------------------------------------------------
 // Reading the raw JSON.
 
-/// A short rendering of a JSON value for an error message.
-fn shown(value: &Value) -> String {
-    match value {
-        Value::String(s) => echo(&["\"", s, "\""].concat()),
-        other => echo(&other.to_string()),
-    }
-}
-
-pub(crate) fn parse_error(field: &str, value: &Value, expected: &'static str) -> Error {
-    Error::new(
-        field,
-        ErrorKind::Parse {
-            text: shown(value),
-            expected,
-        },
-    )
-}
-
-/// The map of a JSON object, or an error naming `prefix`.
-pub(crate) fn object<'a>(value: &'a Value, prefix: &str) -> Result<&'a Map<String, Value>> {
-    value
-        .as_object()
-        .ok_or_else(|| parse_error(prefix, value, EXPECTED_OBJECT))
-}
-
-/// The text of `key` in `map`, if given.
-pub(crate) fn text_at(map: &Map<String, Value>, prefix: &str, key: &str) -> Result<Option<String>> {
-    match map.get(key) {
-        None | Some(Value::Null) => Ok(None),
-        Some(Value::String(s)) => Ok(Some(s.clone())),
-        Some(other) => Err(parse_error(&path(prefix, key), other, EXPECTED_TEXT)),
-    }
-}
-
-/// Longest title, in characters.
-pub const MAX_TITLE: usize = 200;
-/// Longest notes, in characters (about ten pages of text).
-pub const MAX_NOTES: usize = 20_000;
-
-/// The free text of the top-level `key` (title, notes), at most `max`
-/// characters: a page lays it out on every edit, and a megabyte of text
-/// would stall it.
-pub(crate) fn free_text(map: &Map<String, Value>, key: &str, max: usize) -> Result<Option<String>> {
-    let text = text_at(map, "", key)?;
-    if let Some(t) = &text {
-        let n = t.chars().count();
-        if n > max {
-            let mut reason = String::new();
-            let _ = write!(
-                reason,
-                "{n} characters is too long; at most {max} are kept in a design file (put longer documents beside it and link them)"
-            );
-            return Err(Error::new(key, ErrorKind::Document { reason }));
-        }
-    }
-    Ok(text)
-}
-
-/// The typed value of `key` in `map`, if given.
-pub(crate) fn typed_at(map: &Map<String, Value>, prefix: &str, key: &str) -> Result<Option<Typed>> {
-    match map.get(key) {
-        None | Some(Value::Null) => Ok(None),
-        Some(Value::String(s)) => Ok(Some(Typed::Text(s.clone()))),
-        Some(Value::Number(n)) => match n.as_f64() {
-            Some(x) => Ok(Some(Typed::Number(x))),
-            None => Err(parse_error(
-                &path(prefix, key),
-                &Value::Number(n.clone()),
-                EXPECTED_VALUE,
-            )),
-        },
-        Some(other) => Err(parse_error(&path(prefix, key), other, EXPECTED_VALUE)),
-    }
-}
-
-/// The parent of a dotted path: `parts` for `parts.rc`, `` for `supply`.
-fn parent(path: &str) -> &str {
-    path.rsplit_once('.').map_or("", |(p, _)| p)
-}
-
-/// The last name of a dotted path: `rc` for `parts.rc`.
-fn leaf(path: &str) -> &str {
-    path.rsplit_once('.').map_or(path, |(_, k)| k)
-}
-
 /// Other names people write for a key, anywhere in the file.
 const ALIASES: &[(&str, &str)] = &[
     ("vcc", "supply"),
@@ -819,270 +564,8 @@ const ALIASES: &[(&str, &str)] = &[
     ("r_source", "parts.rs"),
 ];
 
-/// The keys of one JSON format, for unknown-key detection and suggestions.
-pub(crate) struct Schema {
-    /// Every key as a dotted path, in groups (the top level, then each block).
-    pub(crate) keys: &'static [&'static [&'static str]],
-    /// Other names people write for a key, anywhere in the file.
-    pub(crate) aliases: &'static [(&'static str, &'static str)],
-}
-
-impl Schema {
-    /// Every known key of the format, as dotted paths.
-    fn all(&self) -> impl Iterator<Item = &'static str> + '_ {
-        self.keys.iter().flat_map(|g| g.iter()).copied()
-    }
-
-    /// Rejects the first key of `map` (in file order) that the block
-    /// `prefix` does not know.
-    pub(crate) fn check_keys(&self, map: &Map<String, Value>, prefix: &str) -> Result<()> {
-        for key in map.keys() {
-            if key.trim().is_empty() {
-                let mut reason = String::from("a key is empty (\"\")");
-                reason.push_str(if prefix.is_empty() {
-                    " at the top level of the file"
-                } else {
-                    " in this block"
-                });
-                reason.push_str("; every key is a name such as \"supply\" or \"rc\"");
-                let field = if prefix.is_empty() { "file" } else { prefix };
-                return Err(Error::new(field, ErrorKind::Document { reason }));
-            }
-            let known = self.all().any(|p| parent(p) == prefix && leaf(p) == key);
-            if !known {
-                return Err(Error::new(
-                    path(prefix, &echo(key)),
-                    ErrorKind::UnknownKey {
-                        suggestion: self.suggest(prefix, key),
-                    },
-                ));
-            }
-        }
-        Ok(())
-    }
-
-    /// The nearest known key for an unknown `key` in the block `prefix`:
-    /// the same name in another block, a known alias, the closest name by
-    /// edit distance, or a name that holds every word of the key.
-    fn suggest(&self, prefix: &str, key: &str) -> Option<&'static str> {
-        // No known key is longer than about 30 characters; a key of more
-        // than 64 is not a typo of one, and comparing it would cost time
-        // and memory in proportion to its length.
-        if key.len() > 64 {
-            return None;
-        }
-        let lower = key.trim().to_ascii_lowercase().replace(['-', ' '], "_");
-        let here = || self.all().filter(move |p| parent(p) == prefix);
-        // Another spelling of a key of this block (case, dashes).
-        if let Some(p) = here().find(|p| leaf(p) == lower) {
-            return Some(p);
-        }
-        // A key of another block, put at the wrong level.
-        if let Some(p) = self.all().find(|p| leaf(p) == lower) {
-            return Some(p);
-        }
-        if let Some(&(_, p)) = self.aliases.iter().find(|(a, _)| *a == lower) {
-            return Some(p);
-        }
-        let limit = match lower.chars().count() {
-            0..=3 => 1,
-            4..=8 => 2,
-            _ => 3,
-        };
-        let closest = |keys: &mut dyn Iterator<Item = &'static str>| {
-            let mut best: Option<(usize, &'static str)> = None;
-            for p in keys {
-                let d = edit_distance(&lower, leaf(p));
-                if d <= limit && best.is_none_or(|(b, _)| d < b) {
-                    best = Some((d, p));
-                }
-            }
-            best.map(|(_, p)| p)
-        };
-        if let Some(p) = closest(&mut here()) {
-            return Some(p);
-        }
-        // Every word of the key in one name of this block: `min_gain_db`.
-        let words: Vec<&str> = lower.split('_').filter(|w| !w.is_empty()).collect();
-        if words.len() >= 2 {
-            if let Some(p) = here().find(|p| {
-                let names: Vec<&str> = leaf(p).split('_').collect();
-                words.iter().all(|w| names.contains(w))
-            }) {
-                return Some(p);
-            }
-        }
-        closest(&mut self.all())
-    }
-}
-
-/// Edit distance with adjacent transpositions (optimal string alignment), by characters.
-fn edit_distance(a: &str, b: &str) -> usize {
-    let a: Vec<char> = a.chars().collect();
-    let b: Vec<char> = b.chars().collect();
-    let w = b.len() + 1;
-    let mut d: Vec<usize> = Vec::with_capacity((a.len() + 1) * w);
-    for i in 0..=a.len() {
-        for j in 0..=b.len() {
-            d.push(if i == 0 {
-                j
-            } else if j == 0 {
-                i
-            } else {
-                0
-            });
-        }
-    }
-    for i in 1..=a.len() {
-        for j in 1..=b.len() {
-            let cost = usize::from(a[i - 1] != b[j - 1]);
-            let mut v = (d[(i - 1) * w + j] + 1)
-                .min(d[i * w + j - 1] + 1)
-                .min(d[(i - 1) * w + j - 1] + cost);
-            if i > 1 && j > 1 && a[i - 1] == b[j - 2] && a[i - 2] == b[j - 1] {
-                v = v.min(d[(i - 2) * w + j - 2] + 1);
-            }
-            d[i * w + j] = v;
-        }
-    }
-    d[a.len() * w + b.len()]
-}
-
 // ---------------------------------------------------------------------------
 // From typed values to a validated design.
-
-fn check_format(format: &str) -> Result<()> {
-    if DESIGN_FORMATS.contains(&format.trim()) {
-        Ok(())
-    } else {
-        let mut allowed = String::from(DESIGN_FORMAT);
-        if crate::spec_file::SPEC_FORMATS.contains(&format.trim()) {
-            allowed.push_str(
-                " (this is a specification: `stagewright design FILE` turns it into a design file)",
-            );
-        } else {
-            allowed.push_str(
-                " (the only version this build reads; a newer file needs a newer stagewright)",
-            );
-        }
-        Err(Error::new(
-            "format",
-            ErrorKind::Unsupported {
-                value: format.to_owned(),
-                allowed,
-            },
-        ))
-    }
-}
-
-pub(crate) fn stage_kind(name: Option<&str>) -> Result<StageKind> {
-    let name = name.ok_or_else(|| {
-        Error::missing(
-            "stage",
-            "give \"stage\": \"common-emitter\", \"common-collector\" or \"common-base\"",
-        )
-    })?;
-    StageKind::parse(name).map_err(|_| {
-        Error::new(
-            "stage",
-            ErrorKind::Unsupported {
-                value: name.trim().to_owned(),
-                allowed: "common-emitter, common-collector (the emitter follower) or common-base"
-                    .to_owned(),
-            },
-        )
-    })
-}
-
-pub(crate) fn optional(
-    value: &Option<Typed>,
-    field: &str,
-    unit: &'static str,
-) -> Result<Option<f64>> {
-    value.as_ref().map(|v| v.value(field, unit)).transpose()
-}
-
-pub(crate) fn required(
-    value: &Option<Typed>,
-    field: &str,
-    unit: &'static str,
-    purpose: &'static str,
-) -> Result<f64> {
-    match value {
-        Some(v) => v.value(field, unit),
-        None => Err(Error::missing(field, purpose)),
-    }
-}
-
-/// Why a transistor key is needed when there is no preset.
-const NO_PRESET: &str =
-    "with no transistor.preset every datasheet value must be given; name a preset (such as general-purpose-npn) or give the value";
-
-pub(crate) fn transistor_from(t: &TransistorDocument) -> Result<TransistorData> {
-    let base = match &t.preset {
-        Some(name) => Some(preset(name)?),
-        None => None,
-    };
-    let polarity = match &t.polarity {
-        Some(p) => Polarity::parse(p).map_err(|e| e.within("transistor"))?,
-        None => match &base {
-            Some(b) => b.polarity,
-            None => return Err(Error::missing("transistor.polarity", NO_PRESET)),
-        },
-    };
-    // A key's value: given, else the preset's, else required.
-    let pick = |v: &Option<Typed>,
-                name: &str,
-                unit: &'static str,
-                from_base: fn(&TransistorData) -> f64|
-     -> Result<f64> {
-        let field = path("transistor", name);
-        match (v, &base) {
-            (Some(v), _) => v.value(&field, unit),
-            (None, Some(b)) => Ok(from_base(b)),
-            (None, None) => Err(Error::missing(field, NO_PRESET)),
-        }
-    };
-    // An optional key: given, else the preset's, else none.
-    let maybe = |v: &Option<Typed>,
-                 name: &str,
-                 unit: &'static str,
-                 from_base: fn(&TransistorData) -> Option<f64>|
-     -> Result<Option<f64>> {
-        match v {
-            Some(v) => v.value(&path("transistor", name), unit).map(Some),
-            None => Ok(base.as_ref().and_then(from_base)),
-        }
-    };
-    Ok(TransistorData {
-        polarity,
-        hfe: pick(&t.hfe, "hfe", "", |b| b.hfe)?,
-        hfe_min: pick(&t.hfe_min, "hfe_min", "", |b| b.hfe_min)?,
-        hfe_max: pick(&t.hfe_max, "hfe_max", "", |b| b.hfe_max)?,
-        vbe: pick(&t.vbe, "vbe", "V", |b| b.vbe)?,
-        vbe_at_ic: pick(&t.vbe_at_ic, "vbe_at_ic", "A", |b| b.vbe_at_ic)?,
-        early_voltage: maybe(&t.early_voltage, "early_voltage", "V", |b| b.early_voltage)?,
-        ft: pick(&t.ft, "ft", "Hz", |b| b.ft)?,
-        cob: pick(&t.cob, "cob", "F", |b| b.cob)?,
-        cob_vcb: maybe(&t.cob_vcb, "cob_vcb", "V", |b| b.cob_vcb)?,
-        rbb: match &t.rbb {
-            Some(v) => v.value("transistor.rbb", "Ω")?,
-            None => base.as_ref().map_or(0.0, |b| b.rbb),
-        },
-        vce_sat: pick(&t.vce_sat, "vce_sat", "V", |b| b.vce_sat)?,
-        vceo_max: pick(&t.vceo_max, "vceo_max", "V", |b| b.vceo_max)?,
-        ic_max: pick(&t.ic_max, "ic_max", "A", |b| b.ic_max)?,
-        ptot_max: pick(&t.ptot_max, "ptot_max", "W", |b| b.ptot_max)?,
-        rth_ja: pick(&t.rth_ja, "rth_ja", "K/W", |b| b.rth_ja)?,
-        tj_max: Temperature::from_celsius(pick(&t.tj_max, "tj_max", "°C", |b| {
-            b.tj_max.celsius()
-        })?),
-        xtb: base.as_ref().map_or(DEFAULT_XTB, |b| b.xtb),
-        beta_reverse: base
-            .as_ref()
-            .map_or(DEFAULT_BETA_REVERSE, |b| b.beta_reverse),
-    })
-}
 
 fn parts_from(kind: StageKind, p: &PartsDocument) -> Result<Parts> {
     let get =
@@ -1117,96 +600,6 @@ fn parts_from(kind: StageKind, p: &PartsDocument) -> Result<Parts> {
         resistor_rating: get(&p.resistor_rating, "resistor_rating", "W")?
             .unwrap_or(d.resistor_rating),
     })
-}
-
-pub(crate) fn requirements_from(r: &RequirementsDocument) -> Result<Requirements> {
-    let field = |name: &str| path("requirements", name);
-    let finite = |v: &Option<Typed>, name: &str, unit: &'static str| -> Result<Option<f64>> {
-        optional(v, &field(name), unit)
-    };
-    let pos = |v: &Option<Typed>, name: &str, unit: &'static str| -> Result<Option<f64>> {
-        optional(v, &field(name), unit)?
-            .map(|x| positive(&field(name), x, unit))
-            .transpose()
-    };
-    let out = Requirements {
-        min_voltage_gain_db: finite(&r.min_voltage_gain_db, "min_voltage_gain_db", "dB")?,
-        max_voltage_gain_db: finite(&r.max_voltage_gain_db, "max_voltage_gain_db", "dB")?,
-        min_input_impedance: pos(&r.min_input_impedance, "min_input_impedance", "Ω")?,
-        max_output_impedance: pos(&r.max_output_impedance, "max_output_impedance", "Ω")?,
-        min_swing: finite(&r.min_swing, "min_swing", "V")?
-            .map(|x| non_negative(&field("min_swing"), x, "V"))
-            .transpose()?,
-        max_f_low: pos(&r.max_f_low, "max_f_low", "Hz")?,
-        min_f_high: pos(&r.min_f_high, "min_f_high", "Hz")?,
-        max_supply_current: pos(&r.max_supply_current, "max_supply_current", "A")?,
-        max_junction_temperature: finite(
-            &r.max_junction_temperature,
-            "max_junction_temperature",
-            "°C",
-        )?,
-    };
-    if let (Some(lo), Some(hi)) = (out.min_voltage_gain_db, out.max_voltage_gain_db) {
-        if lo > hi {
-            let mut reason = String::new();
-            let _ = write!(
-                reason,
-                "min_voltage_gain_db ({lo} dB) is above max_voltage_gain_db ({hi} dB); no gain can meet both"
-            );
-            return Err(Error::inconsistent(field("min_voltage_gain_db"), reason));
-        }
-    }
-    Ok(out)
-}
-
-/// What a share (a tolerance) is told when it cannot be read.
-const EXPECTED_SHARE: &str = "a fraction such as 0.01, or a percentage as text such as \"1 %\"";
-
-/// A share such as a tolerance, from 0 to `max`: a number is the fraction
-/// itself (`0.01`), text ending in `%` is in percent (`"1 %"`), other text
-/// is read as a plain value (`"0.01"`).
-///
-/// # Errors
-/// [`ErrorKind::Parse`] for text that is not a share, and
-/// [`ErrorKind::OutOfRange`] outside 0 to `max` (so `5` meant as 5 % is
-/// refused with the fix).
-pub(crate) fn share(value: &Typed, field: &str, max: f64) -> Result<f64> {
-    let x = match value {
-        Typed::Text(text) => match text.trim().strip_suffix('%') {
-            Some(body) => parse_value_field(field, body, "")
-                .map(|p| p / 100.0)
-                .map_err(|_| {
-                    Error::new(
-                        field,
-                        ErrorKind::Parse {
-                            text: text.clone(),
-                            expected: EXPECTED_SHARE,
-                        },
-                    )
-                })?,
-            None => parse_value_field(field, text, "").map_err(|_| {
-                Error::new(
-                    field,
-                    ErrorKind::Parse {
-                        text: text.clone(),
-                        expected: EXPECTED_SHARE,
-                    },
-                )
-            })?,
-        },
-        Typed::Number(x) => *x,
-    };
-    if x.is_finite() && (0.0..=max).contains(&x) {
-        Ok(x)
-    } else {
-        let mut allowed = String::new();
-        let _ = write!(
-            allowed,
-            "a fraction from 0 to {max} (0 to {} %), such as 0.01 or \"1 %\"",
-            max * 100.0
-        );
-        Err(Error::out_of_range(field, x, "", allowed))
-    }
 }
 
 /// The `tolerances` block read and checked against `stage`: each key left
@@ -1248,13 +641,6 @@ fn tolerances_from(t: &TolerancesDocument, stage: &Stage) -> Result<Tolerances> 
     Ok(out)
 }
 
-/// A temperature in °C as a file writes it: rounded to 1 nK so that the
-/// kelvin round trip (0.1 °C is 273.25 K is 0.10000000000002274 °C) does
-/// not show.
-pub(crate) fn file_celsius(t: Temperature) -> f64 {
-    libm::round(t.celsius() * 1e9) / 1e9
-}
-
 /// Puts `parts.` in front of the part names that [`Stage::validate`] reports bare.
 fn locate_part(e: Error) -> Error {
     let bare = e.field();
@@ -1265,58 +651,12 @@ fn locate_part(e: Error) -> Error {
     }
 }
 
-/// The transistor block of a design: the preset and the values that differ
-/// from it, or every value when there is no preset (or when the preset
-/// cannot express the device).
-fn transistor_document(t: &TransistorData, preset_name: Option<&str>) -> TransistorDocument {
-    let base = preset_name.and_then(|n| preset(n).ok().map(|b| (n, b)));
-    // A preset whose Early voltage or Cob voltage was removed cannot be
-    // written as overrides: write the device in full instead.
-    let base = base.filter(|(_, b)| {
-        (b.early_voltage.is_none() || t.early_voltage.is_some())
-            && (b.cob_vcb.is_none() || t.cob_vcb.is_some())
-    });
-    let differs = |x: f64, f: fn(&TransistorData) -> f64| match &base {
-        Some((_, b)) if f(b) == x => None,
-        _ => Some(Typed::Number(x)),
-    };
-    let differs_opt = |x: Option<f64>, f: fn(&TransistorData) -> Option<f64>| match (&base, x) {
-        (_, None) => None,
-        (Some((_, b)), Some(v)) if f(b) == Some(v) => None,
-        (_, Some(v)) => Some(Typed::Number(v)),
-    };
-    TransistorDocument {
-        preset: base.as_ref().map(|(n, _)| (*n).to_owned()),
-        polarity: match &base {
-            Some((_, b)) if b.polarity == t.polarity => None,
-            _ => Some(t.polarity.name().to_owned()),
-        },
-        hfe: differs(t.hfe, |b| b.hfe),
-        hfe_min: differs(t.hfe_min, |b| b.hfe_min),
-        hfe_max: differs(t.hfe_max, |b| b.hfe_max),
-        vbe: differs(t.vbe, |b| b.vbe),
-        vbe_at_ic: differs(t.vbe_at_ic, |b| b.vbe_at_ic),
-        early_voltage: differs_opt(t.early_voltage, |b| b.early_voltage),
-        ft: differs(t.ft, |b| b.ft),
-        cob: differs(t.cob, |b| b.cob),
-        cob_vcb: differs_opt(t.cob_vcb, |b| b.cob_vcb),
-        rbb: match &base {
-            Some((_, b)) if b.rbb == t.rbb => None,
-            None if t.rbb == 0.0 => None,
-            _ => Some(Typed::Number(t.rbb)),
-        },
-        vce_sat: differs(t.vce_sat, |b| b.vce_sat),
-        vceo_max: differs(t.vceo_max, |b| b.vceo_max),
-        ic_max: differs(t.ic_max, |b| b.ic_max),
-        ptot_max: differs(t.ptot_max, |b| b.ptot_max),
-        rth_ja: differs(t.rth_ja, |b| b.rth_ja),
-        tj_max: differs(file_celsius(t.tj_max), |b| file_celsius(b.tj_max)),
-    }
-}
-
 #[cfg(test)]
 mod tests {
     use super::*;
+    use crate::error::ErrorKind;
+    use crate::presets::preset;
+    use alloc::string::ToString;
 
     /// A small valid design used by several tests: a common-emitter stage
     /// from a preset, with one value typed as text.
@@ -1683,12 +1023,5 @@ mod tests {
             e.to_string().contains("stagewright design"),
             "a specification given as a design points to the design command: {e}"
         );
-    }
-
-    #[test]
-    fn edit_distance_counts_transpositions_once() {
-        assert_eq!(edit_distance("rcc", "rc"), 1, "one insertion");
-        assert_eq!(edit_distance("hfe_mni", "hfe_min"), 1, "one transposition");
-        assert_eq!(edit_distance("", "abc"), 3, "three insertions");
     }
 }

@@ -108,12 +108,13 @@ pub use constants::{
 };
 #[cfg(feature = "serde")]
 pub use design_file::{
-    Design, DesignDocument, PartsDocument, RequirementsDocument, TolerancesDocument,
-    TransistorDocument, Typed, DEFAULT_AMBIENT_CELSIUS, DESIGN_FORMAT, DESIGN_FORMATS, MAX_NOTES,
-    MAX_TITLE,
+    Design, DesignDocument, PartsDocument, TolerancesDocument, DEFAULT_AMBIENT_CELSIUS,
 };
 #[cfg(feature = "serde")]
-pub use document::{utf8_text, MAX_DEPTH};
+pub use document::{
+    utf8_text, RequirementsDocument, TransistorDocument, Typed, DESIGN_FORMAT, DESIGN_FORMATS,
+    DESIGN_RESULT_FORMAT, MAX_DEPTH, MAX_NOTES, MAX_TITLE, SPEC_FORMAT, SPEC_FORMATS,
+};
 pub use error::{Error, ErrorKind, Result, MAX_ECHO};
 pub use eseries::{ESeries, SeriesLookup};
 pub use format::{format_si, format_value};
@@ -134,7 +135,7 @@ pub use response::{log_frequencies, Bandwidth, Edge, Response, SEARCH_FROM, SEAR
 #[cfg(feature = "serde")]
 pub use spec_file::{
     BiasDocument, BiasPointDocument, DesignResult, PartEntry, PinnedPartsDocument, SeriesDocument,
-    SpecDocument, SpecFile, DESIGN_RESULT_FORMAT, SPEC_FORMAT, SPEC_FORMATS,
+    SpecDocument, SpecFile,
 };
 pub use stage::{
     Parts, Stage, StageKind, DEFAULT_RESISTOR_RATING, MAX_CAPACITANCE, MAX_RESISTANCE, MAX_SUPPLY,

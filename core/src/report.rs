@@ -102,7 +102,8 @@ use serde::ser::SerializeMap;
 use serde::{Serialize, Serializer};
 
 use crate::analysis::Analysis;
-use crate::design_file::{file_celsius, Design};
+use crate::design_file::Design;
+use crate::document::file_celsius;
 use crate::error::Result;
 use crate::format::format_si;
 use crate::nodal::db20;

@@ -89,12 +89,11 @@ use serde::{Deserialize, Deserializer, Serialize};
 use serde_json::Value;
 
 use crate::constants::Temperature;
-use crate::design_file::DesignDocument;
-use crate::design_file::{
-    block, free_text, object, optional, parse_error, required, requirements_from, share,
-    stage_kind, text_at, transistor_from, typed_at, Design, RequirementsDocument, Schema,
-    TransistorDocument, Typed, DEFAULT_AMBIENT_CELSIUS, DESIGN_FORMATS, EXPECTED_TEXT, MAX_NOTES,
-    MAX_TITLE,
+use crate::design_file::{Design, DesignDocument, DEFAULT_AMBIENT_CELSIUS};
+use crate::document::{
+    block, check_spec_format, free_text, object, optional, parse_error, required,
+    requirements_from, share, stage_kind, text_at, transistor_from, typed_at, RequirementsDocument,
+    Schema, TransistorDocument, Typed, DESIGN_RESULT_FORMAT, EXPECTED_TEXT, MAX_NOTES, MAX_TITLE,
 };
 use crate::error::{Error, ErrorKind, Result};
 use crate::eseries::ESeries;
@@ -106,17 +105,6 @@ use crate::synthesis::{
     DEFAULT_EMITTER_FRACTION, DEFAULT_SATURATION_RESERVE, DEFAULT_STIFFNESS,
 };
 use alloc::vec::Vec;
-
-/// The format of a finished design from a specification (the document of
-/// `stagewright design SPEC --json` and of the page's "from requirements"
-/// view): `stagewright-design/1`.
-pub const DESIGN_RESULT_FORMAT: &str = "stagewright-design/1";
-
-/// The format name and version of a specification: `stagewright-spec/1`.
-pub const SPEC_FORMAT: &str = "stagewright-spec/1";
-
-/// Every specification format version this build reads.
-pub const SPEC_FORMATS: &[&str] = &[SPEC_FORMAT];
 
 /// The top-level keys of version 1.
 const TOP_KEYS: &[&str] = &[
@@ -356,7 +344,7 @@ impl SpecDocument {
             Some(Value::String(s)) => s.clone(),
             Some(other) => return Err(parse_error("format", other, EXPECTED_TEXT)),
         };
-        check_format(&format)?;
+        check_spec_format(&format)?;
         let schema = &SPEC_SCHEMA;
         schema.check_keys(map, "")?;
         let block = |key: &str| map.get(key).filter(|v| !v.is_null());
@@ -540,7 +528,7 @@ impl TryFrom<SpecDocument> for SpecFile {
     /// Reads every value in its unit, applies the preset and the defaults,
     /// and validates the specification.
     fn try_from(doc: SpecDocument) -> Result<SpecFile> {
-        check_format(&doc.format)?;
+        check_spec_format(&doc.format)?;
         let kind = stage_kind(doc.stage.as_deref())?;
         let supply = required(
             &doc.supply,
@@ -595,29 +583,6 @@ impl TryFrom<SpecDocument> for SpecFile {
             spec,
         })
     }
-}
-
-fn check_format(format: &str) -> Result<()> {
-    if SPEC_FORMATS.contains(&format.trim()) {
-        return Ok(());
-    }
-    let mut allowed = String::from(SPEC_FORMAT);
-    if DESIGN_FORMATS.contains(&format.trim()) {
-        allowed.push_str(
-            " (this is a design file: `stagewright analyze FILE` or `stagewright check FILE` reads it)",
-        );
-    } else {
-        allowed.push_str(
-            " (the only version this build reads; a newer file needs a newer stagewright)",
-        );
-    }
-    Err(Error::new(
-        "format",
-        ErrorKind::Unsupported {
-            value: format.to_owned(),
-            allowed,
-        },
-    ))
 }
 
 fn bias_from(b: Option<&BiasDocument>) -> Result<Bias> {

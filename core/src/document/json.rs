@@ -1,26 +1,8 @@
-//! JSON text into a checked JSON tree: the first step that the design file
-//! and the specification file share, on the command line and in the page.
-//!
-//! [`parse`] reads the text with serde_json's parser into a
-//! `serde_json::Value`, but through a visitor of its own, so that the
-//! structure is checked while it is read:
-//!
-//! - **a key given twice in one object is refused**, naming the key as a
-//!   dotted path and its line and column. JSON leaves duplicates open and
-//!   most readers (serde_json's `Value`, the browser's `JSON.parse`) keep
-//!   the last one silently, so `"min_voltage_gain_db": 26,
-//!   "min_voltage_gain_db": null` would drop a requirement;
-//! - **nesting is limited to [`MAX_DEPTH`] levels** (a design file needs
-//!   two: the document and its blocks), so a hostile file of thousands of
-//!   brackets is refused in a few microseconds with a message, instead of
-//!   growing the parser's stack;
-//! - **an empty document** gets its own message, and a syntax error names
-//!   the line and column, quotes the text around it and says what was
-//!   expected there ([`json_error`]).
-//!
-//! The page hands the engine the text itself (never an object the browser
-//! parsed), so both readers see exactly the same document and give the same
-//! messages.
+//! JSON text into a checked JSON tree: [`parse`] reads the text with
+//! serde_json's parser through a visitor of its own, which refuses a key
+//! given twice in one object and nesting deeper than [`MAX_DEPTH`]; a
+//! syntax error names its line and column ([`json_error`]). Also the UTF-8
+//! check of a file's bytes ([`utf8_text`]).
 
 use alloc::borrow::ToOwned;
 use alloc::string::String;
