@@ -122,13 +122,12 @@
 
 use alloc::borrow::ToOwned;
 use alloc::string::String;
-use alloc::vec::Vec;
 
 use serde::{Deserialize, Deserializer, Serialize};
 use serde_json::Value;
 
-use crate::analysis::{analyze, Analysis};
 use crate::constants::Temperature;
+use crate::design::Design;
 use crate::document::{
     self, block, check_design_format, file_celsius, free_text, leaf, object, optional, parse_error,
     path, required, requirements_from, share, stage_kind, text_at, transistor_document,
@@ -138,7 +137,6 @@ use crate::document::{
 use crate::error::{Error, Result};
 #[cfg(doc)]
 use crate::presets::PRESETS;
-use crate::ratings::Check;
 use crate::requirements::Requirements;
 use crate::stage::{Parts, Stage, StageKind, DEFAULT_RESISTOR_RATING};
 use crate::tolerance::Tolerances;
@@ -342,26 +340,6 @@ impl<'de> Deserialize<'de> for DesignDocument {
     }
 }
 
-/// A validated design: the stage, its requirements, and its title and notes.
-///
-/// Every value is checked ([`Stage::validate`] passed) and in SI units.
-#[derive(Debug, Clone, PartialEq)]
-pub struct Design {
-    /// The title (empty when none).
-    pub title: String,
-    /// Free notes (empty when none).
-    pub notes: String,
-    /// The preset the transistor started from, when one was named.
-    pub preset: Option<String>,
-    /// The stage.
-    pub stage: Stage,
-    /// What it must meet.
-    pub requirements: Requirements,
-    /// The spread the tolerance analysis uses, when the file gives a
-    /// `tolerances` block (checked against the stage).
-    pub tolerances: Option<Tolerances>,
-}
-
 impl Design {
     /// Reads and validates the JSON text of a design file: the same as
     /// [`DesignDocument::from_json`] followed by `Design::try_from`.
@@ -454,23 +432,6 @@ impl Design {
     /// The design as the pretty-printed JSON of [`Design::to_document`].
     pub fn to_json(&self) -> String {
         self.to_document().to_json()
-    }
-
-    /// Analyses the stage with every option on ([`analyze`]).
-    ///
-    /// # Errors
-    /// When the operating point cannot be solved or the small-signal
-    /// network is singular.
-    pub fn analyze(&self) -> Result<Analysis> {
-        analyze(&self.stage)
-    }
-
-    /// Every check of the design: the ratings checks of the analysis
-    /// (always run) followed by the requirements that are set.
-    pub fn checks(&self, analysis: &Analysis) -> Vec<Check> {
-        let mut out = analysis.ratings.clone();
-        out.extend(self.requirements.check(analysis));
-        out
     }
 }
 

@@ -75,6 +75,8 @@ extern crate std;
 mod analysis;
 mod constants;
 #[cfg(feature = "serde")]
+mod design;
+#[cfg(feature = "serde")]
 mod design_file;
 #[cfg(feature = "serde")]
 mod document;
@@ -107,9 +109,9 @@ pub use constants::{
     thermal_voltage, Temperature, BOLTZMANN, DATASHEET_TEMPERATURE, ELEMENTARY_CHARGE, ZERO_CELSIUS,
 };
 #[cfg(feature = "serde")]
-pub use design_file::{
-    Design, DesignDocument, PartsDocument, TolerancesDocument, DEFAULT_AMBIENT_CELSIUS,
-};
+#[cfg(feature = "serde")]
+pub use design::Design;
+pub use design_file::{DesignDocument, PartsDocument, TolerancesDocument, DEFAULT_AMBIENT_CELSIUS};
 #[cfg(feature = "serde")]
 pub use document::{
     utf8_text, RequirementsDocument, TransistorDocument, Typed, DESIGN_FORMAT, DESIGN_FORMATS,
@@ -129,13 +131,14 @@ pub use ratings::{
     HOT_SURFACE_CELSIUS, RATING_MARGIN, RESISTOR_DERATING,
 };
 #[cfg(feature = "serde")]
-pub use report::{Report, SweepRow, SweepTable, REPORT_FORMAT, SWEEP_FORMAT};
+pub use report::{
+    DesignResult, PartEntry, Report, SweepRow, SweepTable, REPORT_FORMAT, SWEEP_FORMAT,
+};
 pub use requirements::Requirements;
 pub use response::{log_frequencies, Bandwidth, Edge, Response, SEARCH_FROM, SEARCH_TO};
 #[cfg(feature = "serde")]
 pub use spec_file::{
-    BiasDocument, BiasPointDocument, DesignResult, PartEntry, PinnedPartsDocument, SeriesDocument,
-    SpecDocument, SpecFile,
+    BiasDocument, BiasPointDocument, PinnedPartsDocument, SeriesDocument, SpecDocument, SpecFile,
 };
 pub use stage::{
     Parts, Stage, StageKind, DEFAULT_RESISTOR_RATING, MAX_CAPACITANCE, MAX_RESISTANCE, MAX_SUPPLY,

@@ -601,7 +601,7 @@ fn readme_and_module_docs_document_every_report_key() {
         }
     }
     let readme = read("README.md");
-    let docs = read("core/src/report.rs");
+    let docs = read("core/src/report/mod.rs");
     for key in &keys {
         let cell = format!("`{key}`");
         assert!(docs.contains(&cell), "the report module documents {key}");
