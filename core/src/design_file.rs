@@ -132,7 +132,7 @@ use crate::document::{
     self, block, check_design_format, file_celsius, free_text, leaf, object, optional, parse_error,
     path, required, requirements_from, share, stage_kind, text_at, transistor_document,
     transistor_from, typed_at, RequirementsDocument, Schema, TransistorDocument, Typed,
-    DESIGN_FORMAT, EXPECTED_TEXT, MAX_NOTES, MAX_TITLE,
+    DEFAULT_AMBIENT_CELSIUS, DESIGN_FORMAT, EXPECTED_TEXT, MAX_NOTES, MAX_TITLE,
 };
 use crate::error::{Error, Result};
 #[cfg(doc)]
@@ -144,9 +144,6 @@ use crate::tolerance::Tolerances;
 use crate::transistor::TransistorData;
 #[cfg(doc)]
 use crate::value::parse_value_field;
-
-/// Ambient temperature when the file gives none, °C.
-pub const DEFAULT_AMBIENT_CELSIUS: f64 = 25.0;
 
 /// The top-level keys of version 1.
 const TOP_KEYS: &[&str] = &[

@@ -111,11 +111,12 @@ pub use constants::{
 #[cfg(feature = "serde")]
 #[cfg(feature = "serde")]
 pub use design::Design;
-pub use design_file::{DesignDocument, PartsDocument, TolerancesDocument, DEFAULT_AMBIENT_CELSIUS};
+pub use design_file::{DesignDocument, PartsDocument, TolerancesDocument};
 #[cfg(feature = "serde")]
 pub use document::{
-    utf8_text, RequirementsDocument, TransistorDocument, Typed, DESIGN_FORMAT, DESIGN_FORMATS,
-    DESIGN_RESULT_FORMAT, MAX_DEPTH, MAX_NOTES, MAX_TITLE, SPEC_FORMAT, SPEC_FORMATS,
+    utf8_text, RequirementsDocument, TransistorDocument, Typed, DEFAULT_AMBIENT_CELSIUS,
+    DESIGN_FORMAT, DESIGN_FORMATS, DESIGN_RESULT_FORMAT, MAX_DEPTH, MAX_NOTES, MAX_TITLE,
+    SPEC_FORMAT, SPEC_FORMATS,
 };
 pub use error::{Error, ErrorKind, Result, MAX_ECHO};
 pub use eseries::{ESeries, SeriesLookup};

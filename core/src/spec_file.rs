@@ -90,11 +90,11 @@ use serde_json::Value;
 
 use crate::constants::Temperature;
 use crate::design::Design;
-use crate::design_file::DEFAULT_AMBIENT_CELSIUS;
 use crate::document::{
     block, check_spec_format, free_text, object, optional, parse_error, required,
     requirements_from, share, stage_kind, text_at, transistor_from, typed_at, RequirementsDocument,
-    Schema, TransistorDocument, Typed, EXPECTED_TEXT, MAX_NOTES, MAX_TITLE,
+    Schema, TransistorDocument, Typed, DEFAULT_AMBIENT_CELSIUS, EXPECTED_TEXT, MAX_NOTES,
+    MAX_TITLE,
 };
 use crate::error::{Error, ErrorKind, Result};
 use crate::eseries::ESeries;

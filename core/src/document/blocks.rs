@@ -17,6 +17,9 @@ use crate::requirements::Requirements;
 use crate::stage::StageKind;
 use crate::transistor::{Polarity, TransistorData, DEFAULT_BETA_REVERSE, DEFAULT_XTB};
 
+/// Ambient temperature when a file gives none, °C (both formats).
+pub const DEFAULT_AMBIENT_CELSIUS: f64 = 25.0;
+
 block! {
     /// The `transistor` block as typed.
     TransistorDocument in "transistor" {

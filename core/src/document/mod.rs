@@ -32,7 +32,7 @@ mod schema;
 mod typed;
 
 pub(crate) use blocks::{requirements_from, stage_kind, transistor_document, transistor_from};
-pub use blocks::{RequirementsDocument, TransistorDocument};
+pub use blocks::{RequirementsDocument, TransistorDocument, DEFAULT_AMBIENT_CELSIUS};
 pub(crate) use formats::{check_design_format, check_spec_format};
 pub use formats::{DESIGN_FORMAT, DESIGN_FORMATS, DESIGN_RESULT_FORMAT, SPEC_FORMAT, SPEC_FORMATS};
 pub(crate) use json::{parse, path};
