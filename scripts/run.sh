@@ -18,5 +18,5 @@ if [ -n "${DISPLAY:-}${WAYLAND_DISPLAY:-}" ] && command -v xdg-open >/dev/null 2
   xdg-open "$page" >/dev/null 2>&1 || true
 fi
 echo
-cargo build --release -q -p stagewright --bin stagewright
+cargo build --release -q -p stagewright-cli
 ./target/release/stagewright analyze examples/transducer-gain-stage.json

@@ -31,7 +31,7 @@ if [ ! -f dist/stagewright.html ] || [ ! -f dist/stagewright.js ] ||
 fi
 
 echo "==> building the native stagewright command (reference reports)"
-cargo build --release -p stagewright --bin stagewright
+cargo build --release -p stagewright-cli
 
 cd "$ROOT/tests/browser"
 echo "==> installing test dependencies"

@@ -102,7 +102,7 @@ export async function screenshot(page, name, options = {}) {
 }
 
 /** The native command line, built by scripts/test-browser.sh with
- * `cargo build --release -p stagewright --bin stagewright`. */
+ * `cargo build --release -p stagewright-cli`. */
 export const cliPath = process.env.STAGEWRIGHT_CLI || path.join(root, "target", "release", "stagewright");
 
 /** `stagewright analyze FILE --json`, parsed. The exit status says pass (0)

@@ -32,7 +32,7 @@ use stagewright::{Design, REPORT_FORMAT};
 /// The binary under test.
 const BIN: &str = env!("CARGO_BIN_EXE_stagewright");
 
-/// The workspace root (the core crate's parent).
+/// The workspace root (the command-line crate's parent).
 fn root() -> PathBuf {
     Path::new(env!("CARGO_MANIFEST_DIR"))
         .parent()

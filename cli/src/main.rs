@@ -7,9 +7,7 @@
 
 // The commands beyond the first ones live in `stagewright/` beside this
 // file (not directly in `src/bin/`, where cargo would take them for binaries).
-#[path = "stagewright/design.rs"]
 mod design;
-#[path = "stagewright/tolerance.rs"]
 mod tolerance;
 
 use std::io::{self, Read, Write};
