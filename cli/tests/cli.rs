@@ -36,7 +36,7 @@ const BIN: &str = env!("CARGO_BIN_EXE_stagewright");
 fn root() -> PathBuf {
     Path::new(env!("CARGO_MANIFEST_DIR"))
         .parent()
-        .expect("the core crate sits inside the workspace")
+        .expect("the command-line crate sits inside the workspace")
         .to_path_buf()
 }
 
