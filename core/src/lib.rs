@@ -74,6 +74,8 @@ extern crate std;
 
 mod analysis;
 mod constants;
+mod corner;
+mod decibel;
 #[cfg(feature = "serde")]
 mod design;
 #[cfg(feature = "serde")]
@@ -88,6 +90,7 @@ mod load_line;
 mod midband;
 mod nodal;
 mod operating_point;
+mod parallel;
 mod presets;
 mod random;
 mod ratings;
@@ -108,6 +111,7 @@ pub use analysis::{analyze, analyze_with, Analysis, Options};
 pub use constants::{
     thermal_voltage, Temperature, BOLTZMANN, DATASHEET_TEMPERATURE, ELEMENTARY_CHARGE, ZERO_CELSIUS,
 };
+pub use decibel::{db10, db20};
 #[cfg(feature = "serde")]
 #[cfg(feature = "serde")]
 pub use design::Design;
@@ -124,7 +128,7 @@ pub use format::{format_si, format_value};
 pub use hybrid_pi::{SmallSignal, OPEN_RESISTANCE};
 pub use load_line::{load_lines, Characteristic, LoadLines};
 pub use midband::Midband;
-pub use nodal::{db10, db20, AcNetwork, Band, FrequencyPoint};
+pub use nodal::{AcNetwork, Band, FrequencyPoint};
 pub use operating_point::{OperatingPoint, Region};
 pub use presets::{preset, Preset, PRESETS};
 pub use ratings::{

@@ -21,8 +21,10 @@
 //! With ro infinite the two agree to rounding; with a finite Early voltage
 //! they differ by terms of the order of (RC∥RL)/ro.
 
+use crate::decibel::db10;
 use crate::hybrid_pi::SmallSignal;
-use crate::nodal::{db10, FrequencyPoint};
+use crate::nodal::FrequencyPoint;
+use crate::parallel::parallel;
 use crate::stage::{Stage, StageKind};
 
 /// Midband gains and impedances (real numbers: the midband network is resistive).
@@ -40,11 +42,6 @@ pub struct Midband {
     pub input_impedance: f64,
     /// Output impedance seen by the load with the EMF zeroed and rs kept, Ω.
     pub output_impedance: f64,
-}
-
-fn par(a: f64, b: f64) -> f64 {
-    // formula: a∥b = ab/(a + b)
-    a * b / (a + b)
 }
 
 impl Midband {
@@ -69,18 +66,26 @@ impl Midband {
         let (av, zin, zout) = match stage.kind {
             StageKind::CommonEmitter => {
                 let zb = rx + ss.r_pi + (beta + 1.0) * p.re;
-                (-beta * par(p.rc, p.rl) / zb, par(rb, zb), p.rc)
+                (-beta * parallel(p.rc, p.rl) / zb, parallel(rb, zb), p.rc)
             }
             StageKind::CommonCollector => {
-                let rl_e = par(p.re, p.rl);
+                let rl_e = parallel(p.re, p.rl);
                 let zb = rx + ss.r_pi + (beta + 1.0) * rl_e;
-                let rsb = if p.rs > 0.0 { par(p.rs, rb) } else { 0.0 };
+                let rsb = if p.rs > 0.0 { parallel(p.rs, rb) } else { 0.0 };
                 let z_emitter = (rx + ss.r_pi + rsb) / (beta + 1.0);
-                ((beta + 1.0) * rl_e / zb, par(rb, zb), par(p.re, z_emitter))
+                (
+                    (beta + 1.0) * rl_e / zb,
+                    parallel(rb, zb),
+                    parallel(p.re, z_emitter),
+                )
             }
             StageKind::CommonBase => {
                 let ze = (rx + ss.r_pi) / (beta + 1.0);
-                (beta * par(p.rc, p.rl) / (rx + ss.r_pi), par(p.re, ze), p.rc)
+                (
+                    beta * parallel(p.rc, p.rl) / (rx + ss.r_pi),
+                    parallel(p.re, ze),
+                    p.rc,
+                )
             }
         };
         let avs = av * zin / (zin + p.rs);

@@ -22,6 +22,7 @@
 
 use num_complex::Complex64;
 
+use crate::decibel::{db10, db20};
 use crate::error::{Error, Result};
 use crate::hybrid_pi::SmallSignal;
 use crate::stage::{Stage, StageKind};
@@ -85,27 +86,6 @@ impl FrequencyPoint {
     /// Phase of the voltage gain, degrees in (−180, 180].
     pub fn phase_deg(&self) -> f64 {
         self.voltage_gain.arg().to_degrees()
-    }
-}
-
-/// Lowest level reported in dB (a ratio of 10⁻¹⁵).
-const DB_FLOOR: f64 = -300.0;
-
-/// 20·log10(x), floored at −300 dB so that a zero never becomes −∞.
-pub fn db20(x: f64) -> f64 {
-    if x > 1e-15 {
-        20.0 * libm::log10(x)
-    } else {
-        DB_FLOOR
-    }
-}
-
-/// 10·log10(x), floored at −300 dB.
-pub fn db10(x: f64) -> f64 {
-    if x > 1e-30 {
-        10.0 * libm::log10(x)
-    } else {
-        DB_FLOOR
     }
 }
 

@@ -257,7 +257,7 @@ pub(crate) fn passband_caution(b: &crate::response::Bandwidth) -> Option<Caution
             "The response never comes within 3 dB of the midband gain: its peak is {} below it, at {}. \
              The midband gains and impedances describe a band this stage does not have; a coupling or bypass \
              capacitor is far too small for the frequencies the stage must pass.",
-            format_si(-crate::nodal::db20(b.peak_ratio), "dB"),
+            format_si(-crate::decibel::db20(b.peak_ratio), "dB"),
             format_si(b.peak_frequency, "Hz")
         ),
     })

@@ -7,8 +7,8 @@
 use alloc::vec::Vec;
 
 use crate::analysis::Analysis;
+use crate::decibel::db20;
 use crate::format::format_si;
-use crate::nodal::db20;
 use crate::ratings::Check;
 use crate::response::{Bandwidth, Edge, Side, SEARCH_FROM, SEARCH_TO};
 
@@ -220,7 +220,7 @@ pub(crate) fn corner_check(
             band.peak_frequency,
             alloc::format!(
                 "{what}: none, the response never comes within 3 dB of the midband gain (its peak, {} below midband, is at {}); the stage has no passband, so the required {bound} {} is not met",
-                format_si(-crate::nodal::db20(band.peak_ratio), "dB"),
+                format_si(-crate::decibel::db20(band.peak_ratio), "dB"),
                 hz(band.peak_frequency),
                 hz(limit)
             ),

@@ -29,6 +29,7 @@
 
 use alloc::vec::Vec;
 
+use crate::corner::{illinois, ln_safe};
 use crate::error::{within, Result};
 use crate::hybrid_pi::SmallSignal;
 use crate::nodal::{AcNetwork, Band, FrequencyPoint};
@@ -179,10 +180,6 @@ fn magnitude(p: &FrequencyPoint, t: Track) -> f64 {
     }
 }
 
-fn ln_safe(x: f64) -> f64 {
-    libm::log(x.max(1e-300))
-}
-
 impl Response {
     /// Assembles the full and midband networks of `stage` at `ss`.
     pub fn new(stage: &Stage, ss: &SmallSignal) -> Result<Response> {
@@ -211,42 +208,16 @@ impl Response {
     }
 
     /// Finds where ln|H| − `level` changes sign between grid frequencies
-    /// `fa` (value `ga`) and `fb` (value `gb`), by Illinois regula falsi on ln f.
+    /// `fa` (value `ga`) and `fb` (value `gb`), by Illinois regula falsi on
+    /// ln f ([`crate::corner::illinois`]): until ln|H| is within 10⁻¹¹ of
+    /// the level or the bracket is narrower than 10⁻¹⁰ in ln f, 60 steps at
+    /// most.
     fn refine(&self, t: Track, level: f64, fa: f64, ga: f64, fb: f64, gb: f64) -> Result<f64> {
-        let (mut xa, mut ya, mut xb, mut yb) = (libm::log(fa), ga, libm::log(fb), gb);
-        let mut side = 0i8;
-        for _ in 0..60 {
-            let x = if (yb - ya).abs() > 0.0 {
-                xb - yb * (xb - xa) / (yb - ya)
-            } else {
-                0.5 * (xa + xb)
-            };
-            let x = if x > xa.min(xb) && x < xa.max(xb) {
-                x
-            } else {
-                0.5 * (xa + xb)
-            };
-            let y = ln_safe(magnitude(&self.full.solve(libm::exp(x))?, t)) - level;
-            if y.abs() < 1e-11 || (xb - xa).abs() < 1e-10 {
-                return Ok(libm::exp(x));
-            }
-            if (y > 0.0) == (yb > 0.0) {
-                xb = x;
-                yb = y;
-                if side == 1 {
-                    ya *= 0.5;
-                }
-                side = 1;
-            } else {
-                xa = x;
-                ya = y;
-                if side == -1 {
-                    yb *= 0.5;
-                }
-                side = -1;
-            }
-        }
-        Ok(libm::exp(0.5 * (xa + xb)))
+        let h = |x: f64| -> Result<f64> {
+            Ok(ln_safe(magnitude(&self.full.solve(libm::exp(x))?, t)) - level)
+        };
+        let x = illinois(&h, libm::log(fa), ga, libm::log(fb), gb, 1e-11, 1e-10, 60)?;
+        Ok(libm::exp(x))
     }
 
     /// The corners and unity-gain frequencies.

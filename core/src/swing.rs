@@ -24,6 +24,7 @@
 //! common-base stage is neglected (it is the small input signal).
 
 use crate::operating_point::{OperatingPoint, Region};
+use crate::parallel::parallel;
 use crate::stage::{Stage, StageKind};
 use crate::transistor::Polarity;
 
@@ -52,10 +53,6 @@ pub struct Swing {
     pub centred_swing: f64,
 }
 
-fn par(a: f64, b: f64) -> f64 {
-    a * b / (a + b)
-}
-
 impl Swing {
     /// The limits of `stage` at `op`.
     pub fn at(stage: &Stage, op: &OperatingPoint) -> Swing {
@@ -75,7 +72,7 @@ impl Swing {
                 } else {
                     0.0
                 };
-                let rac = par(p.rc, p.rl);
+                let rac = parallel(p.rc, p.rl);
                 let line = rac + re_u;
                 // formula: IC* = (VCC − VCE(sat))/(RC + RE/α + rac + Re)
                 let ic_c = libm::fmax(vcc - vsat, 0.0) / (p.rc + re_total / alpha + line);
@@ -83,7 +80,7 @@ impl Swing {
                 (ic * rac, headroom * rac / line, true, rac, line, centred)
             }
             StageKind::CommonCollector => {
-                let rac = par(p.re, p.rl);
+                let rac = parallel(p.re, p.rl);
                 // formula: IE* = (VCC − VCE(sat))/(2α·RC + RE + rac)
                 let ie_c = libm::fmax(vcc - vsat, 0.0) / (2.0 * alpha * p.rc + p.re + rac);
                 let vce_c = vcc - alpha * ie_c * p.rc - ie_c * p.re;

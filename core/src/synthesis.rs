@@ -102,12 +102,14 @@ use alloc::vec::Vec;
 
 use crate::analysis::{analyze, Analysis};
 use crate::constants::Temperature;
+use crate::corner::{corner_level, find_corner, ln_gain, Start};
+use crate::decibel::db20;
 use crate::error::{non_negative, positive, within, Error, Result};
 use crate::eseries::ESeries;
 use crate::format::format_si;
 use crate::hybrid_pi::SmallSignal;
-use crate::nodal::db20;
 use crate::operating_point::{OperatingPoint, Region};
+use crate::parallel::parallel;
 use crate::ratings::{Check, Dissipation, RESISTOR_DERATING};
 use crate::requirements::Requirements;
 use crate::response::Response;
@@ -116,7 +118,7 @@ use crate::stage::{
     Parts, Stage, StageKind, DEFAULT_RESISTOR_RATING, MAX_CAPACITANCE, MAX_RESISTANCE, MAX_SUPPLY,
 };
 use crate::swing::Swing;
-use crate::tolerance::{corner_level, find_corner, ln_gain, Start, Tolerances};
+use crate::tolerance::Tolerances;
 use crate::transistor::{Device, Polarity, TransistorData};
 
 #[cfg(doc)]
@@ -705,15 +707,6 @@ struct Gap {
     short: f64,
 }
 
-fn par(a: f64, b: f64) -> f64 {
-    // formula: a∥b = ab/(a + b), with a 0 Ω side a short
-    if a <= 0.0 || b <= 0.0 {
-        0.0
-    } else {
-        a * b / (a + b)
-    }
-}
-
 struct Ctx<'a> {
     spec: &'a Spec,
     dev: Device,
@@ -836,7 +829,7 @@ impl<'a> Ctx<'a> {
     /// The pinned divider's (VTH, RTH), when both resistors are pinned.
     fn divider(&self) -> Option<(f64, f64)> {
         match (self.up, self.down) {
-            (Some(u), Some(d)) => Some((self.vcc * d / (u + d), par(u, d))),
+            (Some(u), Some(d)) => Some((self.vcc * d / (u + d), parallel(u, d))),
             _ => None,
         }
     }
@@ -886,7 +879,11 @@ impl<'a> Ctx<'a> {
         } else {
             r
         };
-        let rac = if follower { par(r, rl) } else { par(rc, rl) };
+        let rac = if follower {
+            parallel(r, rl)
+        } else {
+            parallel(rc, rl)
+        };
         let (law, re_from_divider) = self.law();
         let reb_pin = s.parts.re_bypassed;
         let divider = self.divider();
@@ -916,7 +913,11 @@ impl<'a> Ctx<'a> {
             }
             let beta0 = gm / gpi;
             let rpi = 1.0 / gpi;
-            let rac_o = if go > 0.0 { par(rac, 1.0 / go) } else { rac };
+            let rac_o = if go > 0.0 {
+                parallel(rac, 1.0 / go)
+            } else {
+                rac
+            };
             let ve_div = divider.map(|(vth, rth)| vth - ib * (rth + self.rbb) - vbe);
             // The unbypassed emitter resistance (common emitter).
             if kind == StageKind::CommonEmitter {
@@ -1051,7 +1052,7 @@ impl<'a> Ctx<'a> {
                 }
                 let d = vbt * u / den;
                 let vth = vcc * d / (u + d);
-                (par(u, d), vth, u, d, vth)
+                (parallel(u, d), vth, u, d, vth)
             }
             (None, Some(d)) => {
                 // formula: R_up = (VCC − VB)/(IB + VB/R_down)
@@ -1060,10 +1061,10 @@ impl<'a> Ctx<'a> {
                     return None;
                 }
                 let vth = vcc * d / (u + d);
-                (par(u, d), vth, u, d, vth)
+                (parallel(u, d), vth, u, d, vth)
             }
             (Some(u), Some(d)) => {
-                let (vth, rth) = (vcc * d / (u + d), par(u, d));
+                let (vth, rth) = (vcc * d / (u + d), parallel(u, d));
                 (rth, vth, u, d, vbt + ib * rth)
             }
         };
@@ -1759,21 +1760,33 @@ impl<'a> Ctx<'a> {
         // formula: short-circuit resistances (Sedra & Smith, ch. 9)
         match self.kind() {
             StageKind::CommonEmitter => {
-                list.push((0, rs + par(rb, rx + rpi + b1 * p.re), pin.c_in));
+                list.push((0, rs + parallel(rb, rx + rpi + b1 * p.re), pin.c_in));
                 list.push((1, p.rc + rl, pin.c_out));
                 if p.re_bypassed > 0.0 {
-                    let r = par(p.re_bypassed, p.re + (rx + rpi + par(rs, rb)) / b1);
+                    let r = parallel(p.re_bypassed, p.re + (rx + rpi + parallel(rs, rb)) / b1);
                     list.push((2, r, pin.c_emitter));
                 }
             }
             StageKind::CommonCollector => {
-                list.push((0, rs + par(rb, rx + rpi + b1 * par(p.re, rl)), pin.c_in));
-                list.push((1, rl + par(p.re, (rx + rpi + par(rs, rb)) / b1), pin.c_out));
+                list.push((
+                    0,
+                    rs + parallel(rb, rx + rpi + b1 * parallel(p.re, rl)),
+                    pin.c_in,
+                ));
+                list.push((
+                    1,
+                    rl + parallel(p.re, (rx + rpi + parallel(rs, rb)) / b1),
+                    pin.c_out,
+                ));
             }
             StageKind::CommonBase => {
-                list.push((0, rs + par(p.re, (rx + rpi) / b1), pin.c_in));
+                list.push((0, rs + parallel(p.re, (rx + rpi) / b1), pin.c_in));
                 list.push((1, p.rc + rl, pin.c_out));
-                list.push((3, par(rb, rx + rpi + b1 * par(p.re, rs)), pin.c_base));
+                list.push((
+                    3,
+                    parallel(rb, rx + rpi + b1 * parallel(p.re, rs)),
+                    pin.c_base,
+                ));
             }
         }
         let w = 2.0 * core::f64::consts::PI * f_t;
@@ -2423,7 +2436,7 @@ mod tests {
         let a = &d.ideal_analysis;
         let gain_db = db20(libm::fabs(a.midband.voltage_gain));
         assert!(libm::fabs(gain_db - 23.0) < 0.01, "{gain_db} dB");
-        let rac = par(d.ideal.parts.rc, 10e3);
+        let rac = parallel(d.ideal.parts.rc, 10e3);
         let re_e = crate::constants::thermal_voltage(s.ambient) / a.operating_point.ic;
         let estimate = rac / libm::pow(10.0, 23.0 / 20.0) - re_e;
         assert!(
@@ -2469,7 +2482,7 @@ mod tests {
         let d = synthesize(&s).unwrap();
         let op = &d.ideal_analysis.operating_point;
         assert!(rel(op.ic, 1e-3) < 1e-3, "{}", op.ic);
-        let rac = par(d.ideal.parts.rc, 10e3);
+        let rac = parallel(d.ideal.parts.rc, 10e3);
         let vmin = s.transistor.vce_sat + s.saturation_reserve;
         let line = op.ic * (rac + d.ideal.parts.re);
         assert!(rel(libm::fabs(op.vce) - vmin, line) < 1e-3);
@@ -2520,7 +2533,7 @@ mod tests {
         // Centred with the reserve: VCEQ − VCE(sat) − 0.5 V = ICQ·(rac + Re).
         let op = &d.ideal_analysis.operating_point;
         let vmin = s.transistor.vce_sat + s.saturation_reserve;
-        let line = op.ic * (par(d.ideal.parts.rc, 10e3) + 220.0);
+        let line = op.ic * (parallel(d.ideal.parts.rc, 10e3) + 220.0);
         assert!(rel(libm::fabs(op.vce) - vmin, line) < 0.01);
     }
 

@@ -107,9 +107,9 @@ pub use design_result::{DesignResult, PartEntry};
 pub use sweep::{SweepRow, SweepTable, SWEEP_FORMAT};
 
 use crate::analysis::Analysis;
+use crate::decibel::db20;
 use crate::design::Design;
 use crate::document::file_celsius;
-use crate::nodal::db20;
 use crate::ratings::Check;
 
 /// The format name and version of the report: `stagewright-report/1`.

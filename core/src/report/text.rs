@@ -7,8 +7,8 @@ use alloc::string::String;
 use core::fmt::Write as _;
 
 use super::{DesignSection, Report};
+use crate::decibel::db20;
 use crate::format::format_si;
-use crate::nodal::db20;
 use crate::ratings::DEFERRAL;
 use crate::response::{SEARCH_FROM, SEARCH_TO};
 
