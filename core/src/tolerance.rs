@@ -1581,8 +1581,10 @@ pub struct WorstCheck {
 /// Each requirement that is set, judged at the vertex where it is worst:
 /// the lowest value over the box for a lower bound (`min_…`), the highest
 /// for an upper bound (`max_…`). The meaning is that of the nominal check:
-/// a missing lower corner counts as 0 Hz, a missing upper corner as the top
-/// of the search range ([`SEARCH_TO`]); the gain is compared in dB. The
+/// a corner found at every vertex is judged at its worst; a corner the
+/// stage has but some vertex lacks fails ([`WorstCase::low_edge`]); no
+/// corner at all (the gain holds to DC) or one beyond the search range is
+/// judged as the nominal check judges it; the gain is compared in dB. The
 /// command line's `check --worst-case` and the page both judge with this.
 pub fn worst_checks(requirements: &Requirements, worst: &WorstCase) -> Vec<WorstCheck> {
     use Quantity::*;
