@@ -73,6 +73,7 @@ extern crate alloc;
 extern crate std;
 
 mod analysis;
+mod complex;
 mod constants;
 mod corner;
 mod decibel;
@@ -84,6 +85,7 @@ mod design_file;
 mod document;
 mod error;
 mod eseries;
+mod figures;
 mod format;
 mod hybrid_pi;
 mod load_line;
@@ -124,6 +126,7 @@ pub use document::{
 };
 pub use error::{Error, ErrorKind, Result, MAX_ECHO};
 pub use eseries::{ESeries, SeriesLookup};
+pub use figures::{Figure, FIGURES};
 pub use format::{format_si, format_value};
 pub use hybrid_pi::{SmallSignal, OPEN_RESISTANCE};
 pub use load_line::{load_lines, Characteristic, LoadLines};

@@ -22,6 +22,7 @@
 
 use num_complex::Complex64;
 
+use crate::complex::{magnitude, phase};
 use crate::decibel::{db10, db20};
 use crate::error::{Error, Result};
 use crate::hybrid_pi::SmallSignal;
@@ -69,23 +70,23 @@ pub struct FrequencyPoint {
 impl FrequencyPoint {
     /// Voltage gain (terminal) in dB.
     pub fn voltage_gain_db(&self) -> f64 {
-        db20(self.voltage_gain.norm())
+        db20(magnitude(self.voltage_gain))
     }
     /// Voltage gain from the source EMF in dB.
     pub fn voltage_gain_from_source_db(&self) -> f64 {
-        db20(self.voltage_gain_from_source.norm())
+        db20(magnitude(self.voltage_gain_from_source))
     }
     /// Current gain in dB.
     pub fn current_gain_db(&self) -> f64 {
-        db20(self.current_gain.norm())
+        db20(magnitude(self.current_gain))
     }
     /// Power gain |Av·Ai| in dB (10·log10).
     pub fn power_gain_db(&self) -> f64 {
-        db10((self.voltage_gain * self.current_gain).norm())
+        db10(magnitude(self.voltage_gain * self.current_gain))
     }
     /// Phase of the voltage gain, degrees in (−180, 180].
     pub fn phase_deg(&self) -> f64 {
-        self.voltage_gain.arg().to_degrees()
+        phase(self.voltage_gain).to_degrees()
     }
 }
 
@@ -383,7 +384,7 @@ impl AcNetwork {
         let input_impedance = v_in / (i_in + tiny);
         // formula: Zout = 1/(1/Zt − 1/RL), Zt = Zout ∥ RL
         let y_out = Complex64::new(1.0, 0.0) / (z_t + tiny) - self.g_load;
-        let output_impedance = if y_out.norm() > 1e-15 {
+        let output_impedance = if magnitude(y_out) > 1e-15 {
             Complex64::new(1.0, 0.0) / y_out
         } else {
             Complex64::new(crate::hybrid_pi::OPEN_RESISTANCE, 0.0)

@@ -29,6 +29,7 @@
 
 use alloc::vec::Vec;
 
+use crate::complex::magnitude;
 use crate::corner::{illinois, ln_safe};
 use crate::error::{within, Result};
 use crate::hybrid_pi::SmallSignal;
@@ -172,11 +173,11 @@ enum Track {
     PowerGain,
 }
 
-fn magnitude(p: &FrequencyPoint, t: Track) -> f64 {
+fn tracked(p: &FrequencyPoint, t: Track) -> f64 {
     match t {
-        Track::GainFromSource => p.voltage_gain_from_source.norm(),
-        Track::CurrentGain => p.current_gain.norm(),
-        Track::PowerGain => (p.voltage_gain * p.current_gain).norm(),
+        Track::GainFromSource => magnitude(p.voltage_gain_from_source),
+        Track::CurrentGain => magnitude(p.current_gain),
+        Track::PowerGain => magnitude(p.voltage_gain * p.current_gain),
     }
 }
 
@@ -214,7 +215,7 @@ impl Response {
     /// most.
     fn refine(&self, t: Track, level: f64, fa: f64, ga: f64, fb: f64, gb: f64) -> Result<f64> {
         let h = |x: f64| -> Result<f64> {
-            Ok(ln_safe(magnitude(&self.full.solve(libm::exp(x))?, t)) - level)
+            Ok(ln_safe(tracked(&self.full.solve(libm::exp(x))?, t)) - level)
         };
         let x = illinois(&h, libm::log(fa), ga, libm::log(fb), gb, 1e-11, 1e-10, 60)?;
         Ok(libm::exp(x))
@@ -231,13 +232,13 @@ impl Response {
         }
         let mut out = Bandwidth::default();
         // Corners of the gain from the source, relative to midband.
-        let mid = self.midband.voltage_gain_from_source.norm();
+        let mid = magnitude(self.midband.voltage_gain_from_source);
         let t = Track::GainFromSource;
         if mid > 1e-30 {
             let level = ln_safe(mid / core::f64::consts::SQRT_2);
             let g: Vec<f64> = grid
                 .iter()
-                .map(|p| ln_safe(magnitude(p, t)) - level)
+                .map(|p| ln_safe(tracked(p, t)) - level)
                 .collect();
             let k = argmax(&g);
             // The peak between the scan points, when the scan alone does
@@ -269,7 +270,7 @@ impl Response {
                     None => {
                         // Within 3 dB down to the end of the search: is the
                         // gain still there at DC (capacitors open)?
-                        let dc = ln_safe(magnitude(&self.full.solve(0.0)?, t)) - level;
+                        let dc = ln_safe(tracked(&self.full.solve(0.0)?, t)) - level;
                         out.low_edge = if dc > 0.0 {
                             Edge::None
                         } else {
@@ -297,7 +298,7 @@ impl Response {
             out.high_edge = Edge::NoPassband;
         }
         for t in [Track::CurrentGain, Track::PowerGain] {
-            let g: Vec<f64> = grid.iter().map(|p| ln_safe(magnitude(p, t))).collect();
+            let g: Vec<f64> = grid.iter().map(|p| ln_safe(tracked(p, t))).collect();
             let peak = argmax(&g);
             if g[peak] > 0.0 {
                 if let Some(k) = (peak + 1..n).find(|&k| g[k] <= 0.0) {
@@ -333,11 +334,11 @@ impl Response {
         k: usize,
     ) -> Result<(f64, f64)> {
         let value = |x: f64| -> Result<f64> {
-            Ok(ln_safe(magnitude(&self.full.solve(libm::exp(x))?, t)) - level)
+            Ok(ln_safe(tracked(&self.full.solve(libm::exp(x))?, t)) - level)
         };
         let lo = libm::log(grid[k.saturating_sub(1)].frequency);
         let hi = libm::log(grid[(k + 1).min(grid.len() - 1)].frequency);
-        let best = ln_safe(magnitude(&grid[k], t)) - level;
+        let best = ln_safe(tracked(&grid[k], t)) - level;
         // formula: golden section, r = (√5 − 1)/2
         let r = 0.5 * (libm::sqrt(5.0) - 1.0);
         let (mut a, mut b) = (lo, hi);

@@ -27,13 +27,13 @@
 //! are compared to 1e-12 relative (rounding); the mirror to 1e-12 (the same
 //! equations in the mirrored frame); anything else says why beside it.
 
-use stagewright::utf8_text;
 use stagewright::{
     analyze, analyze_with, preset, AcNetwork, Band, Design, Edge, Error, ErrorKind, Midband,
     MonteCarlo, Options, Parts, Polarity, Region, Requirements, Stage, StageKind, Temperature,
     Tolerances, DEFAULT_TRIALS, MAX_DEPTH, MAX_ECHO, MAX_NOTES, MAX_SUPPLY, MAX_TITLE, MAX_TRIALS,
     MIN_RESISTANCE, OPEN_RESISTANCE, PRESETS, SEARCH_FROM, SEARCH_TO,
 };
+use stagewright::{utf8_text, Report, FIGURES};
 
 /// |a − b| / max(|a|, |b|), 0 when both are 0.
 fn rel(a: f64, b: f64) -> f64 {
@@ -664,6 +664,33 @@ fn presets_all_resolve_and_validate() {
     let e = preset("no-such-device").expect_err("unknown");
     assert_eq!(e.field(), "transistor.preset");
     assert!(e.to_string().contains("general-purpose-npn"), "{e}");
+}
+
+#[test]
+fn names_every_figure_is_a_number_of_the_report() {
+    // The one table of figures names keys of the report's JSON: each is a
+    // number there (for the example stage), and no two figures share a key.
+    let d = Design {
+        title: String::new(),
+        notes: String::new(),
+        preset: Some("general-purpose-npn".into()),
+        stage: example(),
+        requirements: Requirements::default(),
+        tolerances: None,
+    };
+    let a = d.analyze().expect("analyses");
+    let v: serde_json::Value =
+        serde_json::from_str(&Report::new(&d, &a).to_json_string()).expect("JSON");
+    for f in FIGURES {
+        let (section, key) = f.key.split_once('.').expect("a dotted path");
+        assert!(
+            v[section][key].is_number(),
+            "{} is a number of the report",
+            f.key
+        );
+        assert!(!f.label.is_empty() && !f.row_label().is_empty());
+    }
+    assert!(FIGURES.len() >= 30);
 }
 
 #[test]

@@ -443,6 +443,14 @@ const COVERAGE: &[(&str, Covered)] = &[
     ("MAX_TRIALS", Api("limits_documents_and_monte_carlo")),
     ("utf8_text", Api("limits_documents_and_monte_carlo")),
     (
+        "Figure",
+        Api("names_every_figure_is_a_number_of_the_report"),
+    ),
+    (
+        "FIGURES",
+        Api("names_every_figure_is_a_number_of_the_report"),
+    ),
+    (
         "Edge",
         Reference("nodal", "no_passband_agrees_with_independent_nodal_solve"),
     ),

@@ -9,6 +9,7 @@ use serde::Serialize;
 
 use super::text::line;
 use crate::analysis::Analysis;
+use crate::complex::magnitude;
 use crate::error::Result;
 use crate::format::format_si;
 
@@ -75,8 +76,8 @@ impl SweepTable {
                 voltage_gain_from_source_db: p.voltage_gain_from_source_db(),
                 current_gain_db: p.current_gain_db(),
                 power_gain_db: p.power_gain_db(),
-                input_impedance: p.input_impedance.norm(),
-                output_impedance: p.output_impedance.norm(),
+                input_impedance: magnitude(p.input_impedance),
+                output_impedance: magnitude(p.output_impedance),
             })
             .collect();
         Ok(SweepTable { rows })

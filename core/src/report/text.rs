@@ -8,6 +8,7 @@ use core::fmt::Write as _;
 
 use super::{DesignSection, Report};
 use crate::decibel::db20;
+use crate::figures::*;
 use crate::format::format_si;
 use crate::ratings::DEFERRAL;
 use crate::response::{SEARCH_FROM, SEARCH_TO};
@@ -37,86 +38,39 @@ impl Report {
 
         let op = &self.operating_point;
         head(&mut o, "Operating point", &["region: ", op.region].concat());
-        row(
-            &mut o,
-            "collector current",
-            "IC",
-            &format_si(op.ic, "A"),
-            "",
-        );
-        row(&mut o, "base current", "IB", &format_si(op.ib, "A"), "");
-        row(&mut o, "emitter current", "IE", &format_si(op.ie, "A"), "");
-        row(
-            &mut o,
-            "collector–emitter voltage",
-            "VCE",
-            &format_si(op.vce, "V"),
-            "",
-        );
-        row(
-            &mut o,
-            "base–emitter voltage",
-            "VBE",
-            &format_si(op.vbe, "V"),
-            "",
-        );
-        row(&mut o, "base", "VB", &format_si(op.vb, "V"), "to ground");
-        row(&mut o, "emitter", "VE", &format_si(op.ve, "V"), "to ground");
-        row(
-            &mut o,
-            "collector",
-            "VC",
-            &format_si(op.vc, "V"),
-            "to ground",
-        );
+        figure_row(&mut o, &OP_IC, &format_si(op.ic, OP_IC.unit), "");
+        figure_row(&mut o, &OP_IB, &format_si(op.ib, OP_IB.unit), "");
+        figure_row(&mut o, &OP_IE, &format_si(op.ie, OP_IE.unit), "");
+        figure_row(&mut o, &OP_VCE, &format_si(op.vce, OP_VCE.unit), "");
+        figure_row(&mut o, &OP_VBE, &format_si(op.vbe, OP_VBE.unit), "");
+        figure_row(&mut o, &OP_VB, &format_si(op.vb, OP_VB.unit), "to ground");
+        figure_row(&mut o, &OP_VE, &format_si(op.ve, OP_VE.unit), "to ground");
+        figure_row(&mut o, &OP_VC, &format_si(op.vc, OP_VC.unit), "to ground");
 
         let ss = &self.small_signal;
         head(&mut o, "Small signal", "");
-        row(&mut o, "transconductance", "gm", &format_si(ss.gm, "S"), "");
-        row(
-            &mut o,
-            "input resistance",
-            "rπ",
-            &format_si(ss.r_pi, "Ω"),
-            "",
-        );
-        row(
-            &mut o,
-            "output resistance",
-            "ro",
-            &format_si(ss.r_o, "Ω"),
-            "",
-        );
-        row(
-            &mut o,
-            "base–emitter capacitance",
-            "Cπ",
-            &format_si(ss.c_pi, "F"),
-            "",
-        );
-        row(
-            &mut o,
-            "base–collector capacitance",
-            "Cμ",
-            &format_si(ss.c_mu, "F"),
-            "",
-        );
-        row(&mut o, "current gain", "β0", &format_si(ss.beta0, ""), "");
+        figure_row(&mut o, &SS_GM, &format_si(ss.gm, SS_GM.unit), "");
+        figure_row(&mut o, &SS_R_PI, &format_si(ss.r_pi, SS_R_PI.unit), "");
+        figure_row(&mut o, &SS_R_O, &format_si(ss.r_o, SS_R_O.unit), "");
+        figure_row(&mut o, &SS_C_PI, &format_si(ss.c_pi, SS_C_PI.unit), "");
+        figure_row(&mut o, &SS_C_MU, &format_si(ss.c_mu, SS_C_MU.unit), "");
+        figure_row(&mut o, &SS_BETA0, &format_si(ss.beta0, SS_BETA0.unit), "");
 
         let m = &self.midband;
         head(&mut o, "Midband", "");
-        row(
+        figure_row(
             &mut o,
-            "voltage gain",
-            "Av",
-            &format_si(m.voltage_gain, ""),
+            &MID_VOLTAGE_GAIN,
+            &format_si(m.voltage_gain, MID_VOLTAGE_GAIN.unit),
             &["(", &format_si(m.voltage_gain_db, "dB"), ")"].concat(),
         );
-        row(
+        figure_row(
             &mut o,
-            "voltage gain from source",
-            "Avs",
-            &format_si(m.voltage_gain_from_source, ""),
+            &MID_VOLTAGE_GAIN_FROM_SOURCE,
+            &format_si(
+                m.voltage_gain_from_source,
+                MID_VOLTAGE_GAIN_FROM_SOURCE.unit,
+            ),
             &[
                 "(",
                 &format_si(db20(libm::fabs(m.voltage_gain_from_source)), "dB"),
@@ -124,32 +78,28 @@ impl Report {
             ]
             .concat(),
         );
-        row(
+        figure_row(
             &mut o,
-            "current gain",
-            "Ai",
-            &format_si(m.current_gain, ""),
+            &MID_CURRENT_GAIN,
+            &format_si(m.current_gain, MID_CURRENT_GAIN.unit),
             "",
         );
-        row(
+        figure_row(
             &mut o,
-            "power gain",
-            "Ap",
-            &format_si(m.power_gain_db, "dB"),
+            &MID_POWER_GAIN_DB,
+            &format_si(m.power_gain_db, MID_POWER_GAIN_DB.unit),
             "",
         );
-        row(
+        figure_row(
             &mut o,
-            "input impedance",
-            "Zin",
-            &format_si(m.input_impedance, "Ω"),
+            &MID_INPUT_IMPEDANCE,
+            &format_si(m.input_impedance, MID_INPUT_IMPEDANCE.unit),
             "",
         );
-        row(
+        figure_row(
             &mut o,
-            "output impedance",
-            "Zout",
-            &format_si(m.output_impedance, "Ω"),
+            &MID_OUTPUT_IMPEDANCE,
+            &format_si(m.output_impedance, MID_OUTPUT_IMPEDANCE.unit),
             "",
         );
 
@@ -165,7 +115,7 @@ impl Report {
             "no-passband" => ("none".to_owned(), "no passband: see the cautions"),
             _ => (freq(b.f_low), ""),
         };
-        row(&mut o, "lower corner", "f_low", &low, low_note);
+        figure_row(&mut o, &BW_F_LOW, &low, low_note);
         let (high, high_note) = match b.high_edge {
             "beyond-search" => (
                 ["above ", &format_si(SEARCH_TO, "Hz")].concat(),
@@ -174,7 +124,7 @@ impl Report {
             "no-passband" => ("none".to_owned(), "no passband: see the cautions"),
             _ => (freq(b.f_high), ""),
         };
-        row(&mut o, "upper corner", "f_high", &high, high_note);
+        figure_row(&mut o, &BW_F_HIGH, &high, high_note);
         if b.low_edge == "no-passband" {
             row(
                 &mut o,
@@ -184,26 +134,39 @@ impl Report {
                 &["re midband, at ", &format_si(b.peak_frequency, "Hz")].concat(),
             );
         }
-        row(
+        figure_row(
             &mut o,
-            "unity current gain",
-            "",
+            &BW_F_UNITY_CURRENT_GAIN,
             &freq(b.f_unity_current_gain),
             "",
         );
-        row(
+        figure_row(
             &mut o,
-            "unity power gain",
-            "",
+            &BW_F_UNITY_POWER_GAIN,
             &freq(b.f_unity_power_gain),
             "",
         );
 
         let sw = &self.swing;
         head(&mut o, "Swing", "peak at the load");
-        row(&mut o, "positive", "", &format_si(sw.positive, "V"), "");
-        row(&mut o, "negative", "", &format_si(sw.negative, "V"), "");
-        row(&mut o, "symmetric", "", &format_si(sw.symmetric, "V"), "");
+        figure_row(
+            &mut o,
+            &SWING_POSITIVE,
+            &format_si(sw.positive, SWING_POSITIVE.unit),
+            "",
+        );
+        figure_row(
+            &mut o,
+            &SWING_NEGATIVE,
+            &format_si(sw.negative, SWING_NEGATIVE.unit),
+            "",
+        );
+        figure_row(
+            &mut o,
+            &SWING_SYMMETRIC,
+            &format_si(sw.symmetric, SWING_SYMMETRIC.unit),
+            "",
+        );
         let mut centred = String::new();
         let _ = write!(
             centred,
@@ -211,11 +174,10 @@ impl Report {
             format_si(sw.centred_ic, "A"),
             format_si(sw.centred_vce, "V")
         );
-        row(
+        figure_row(
             &mut o,
-            "centred Q would give",
-            "",
-            &format_si(sw.centred_swing, "V"),
+            &SWING_CENTRED_SWING,
+            &format_si(sw.centred_swing, SWING_CENTRED_SWING.unit),
             &centred,
         );
 
@@ -224,25 +186,22 @@ impl Report {
         let mut avail = String::from("of ");
         avail.push_str(&format_si(di.ptot_available, "W"));
         avail.push_str(" available");
-        row(
+        figure_row(
             &mut o,
-            "transistor",
-            "",
-            &format_si(di.transistor, "W"),
+            &DISS_TRANSISTOR,
+            &format_si(di.transistor, DISS_TRANSISTOR.unit),
             &avail,
         );
-        row(
+        figure_row(
             &mut o,
-            "junction temperature",
-            "Tj",
-            &format_si(di.junction_temperature, "°C"),
+            &DISS_JUNCTION_TEMPERATURE,
+            &format_si(di.junction_temperature, DISS_JUNCTION_TEMPERATURE.unit),
             "",
         );
-        row(
+        figure_row(
             &mut o,
-            "supply current",
-            "",
-            &format_si(di.supply_current, "A"),
+            &DISS_SUPPLY_CURRENT,
+            &format_si(di.supply_current, DISS_SUPPLY_CURRENT.unit),
             "",
         );
         for (name, w) in &di.resistors.0 {
@@ -340,6 +299,13 @@ fn head(o: &mut String, title: &str, note: &str) {
     } else {
         let _ = writeln!(o, "{title} ({note})");
     }
+}
+
+/// A row of a figure of the table ([`crate::figures`]): its row label and
+/// its symbol as plain text.
+fn figure_row(o: &mut String, fig: &Figure, value: &str, note: &str) {
+    let symbol = [fig.symbol.0, fig.symbol.1].concat();
+    row(o, fig.row_label(), &symbol, value, note);
 }
 
 fn row(o: &mut String, label: &str, symbol: &str, value: &str, note: &str) {
