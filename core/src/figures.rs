@@ -281,6 +281,92 @@ pub const FIGURES: &[Figure] = &[
     DISS_SUPPLY_CURRENT,
 ];
 
+/// A result of the analysis that the tolerance analysis follows.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash)]
+#[cfg_attr(feature = "serde", derive(serde::Serialize))]
+#[cfg_attr(feature = "serde", serde(rename_all = "snake_case"))]
+pub enum Quantity {
+    /// Collector current, A.
+    Ic,
+    /// |VCE|, V.
+    Vce,
+    /// |midband terminal voltage gain|, V/V.
+    VoltageGain,
+    /// Midband input impedance, Ω.
+    InputImpedance,
+    /// Midband output impedance, Ω.
+    OutputImpedance,
+    /// Symmetric peak swing at the load, V.
+    Swing,
+    /// Lower −3 dB corner of the gain from the source, Hz.
+    FLow,
+    /// Upper −3 dB corner of the gain from the source, Hz.
+    FHigh,
+    /// Junction temperature at the quiescent point, °C.
+    JunctionTemperature,
+    /// Current drawn from the supply, A.
+    SupplyCurrent,
+}
+
+impl Quantity {
+    /// Every quantity, in report order.
+    pub const ALL: [Quantity; 10] = [
+        Quantity::Ic,
+        Quantity::Vce,
+        Quantity::VoltageGain,
+        Quantity::InputImpedance,
+        Quantity::OutputImpedance,
+        Quantity::Swing,
+        Quantity::FLow,
+        Quantity::FHigh,
+        Quantity::JunctionTemperature,
+        Quantity::SupplyCurrent,
+    ];
+
+    /// The report key: `ic`, `vce`, `voltage_gain`, ...
+    pub fn name(self) -> &'static str {
+        match self {
+            Quantity::Ic => "ic",
+            Quantity::Vce => "vce",
+            Quantity::VoltageGain => "voltage_gain",
+            Quantity::InputImpedance => "input_impedance",
+            Quantity::OutputImpedance => "output_impedance",
+            Quantity::Swing => "swing",
+            Quantity::FLow => "f_low",
+            Quantity::FHigh => "f_high",
+            Quantity::JunctionTemperature => "junction_temperature",
+            Quantity::SupplyCurrent => "supply_current",
+        }
+    }
+
+    /// The figure of the report it is (its label and symbol): the
+    /// voltage gain is the magnitude of `midband.voltage_gain`, |VCE| that
+    /// of `operating_point.vce`.
+    pub fn figure(self) -> &'static Figure {
+        match self {
+            Quantity::Ic => &OP_IC,
+            Quantity::Vce => &OP_VCE,
+            Quantity::VoltageGain => &MID_VOLTAGE_GAIN,
+            Quantity::InputImpedance => &MID_INPUT_IMPEDANCE,
+            Quantity::OutputImpedance => &MID_OUTPUT_IMPEDANCE,
+            Quantity::Swing => &SWING_SYMMETRIC,
+            Quantity::FLow => &BW_F_LOW,
+            Quantity::FHigh => &BW_F_HIGH,
+            Quantity::JunctionTemperature => &DISS_JUNCTION_TEMPERATURE,
+            Quantity::SupplyCurrent => &DISS_SUPPLY_CURRENT,
+        }
+    }
+
+    /// The unit symbol of the values (empty for the gain in V/V).
+    pub fn unit(self) -> &'static str {
+        self.figure().unit
+    }
+
+    pub(crate) fn index(self) -> usize {
+        self as usize
+    }
+}
+
 #[cfg(test)]
 mod tests {
     use super::FIGURES;

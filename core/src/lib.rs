@@ -126,7 +126,7 @@ pub use document::{
 };
 pub use error::{Error, ErrorKind, Result, MAX_ECHO};
 pub use eseries::{ESeries, SeriesLookup};
-pub use figures::{Figure, FIGURES};
+pub use figures::{Figure, Quantity, FIGURES};
 pub use format::{format_si, format_value};
 pub use hybrid_pi::{SmallSignal, OPEN_RESISTANCE};
 pub use load_line::{load_lines, Characteristic, LoadLines};
@@ -142,7 +142,7 @@ pub use ratings::{
 pub use report::{
     DesignResult, PartEntry, Report, SweepRow, SweepTable, REPORT_FORMAT, SWEEP_FORMAT,
 };
-pub use requirements::Requirements;
+pub use requirements::{Bound, Requirement, Requirements, REQUIREMENTS};
 pub use response::{log_frequencies, Bandwidth, Edge, Response, SEARCH_FROM, SEARCH_TO};
 #[cfg(feature = "serde")]
 pub use spec_file::{
@@ -159,9 +159,8 @@ pub use synthesis::{
 };
 pub use tolerance::{
     sensitivity, tolerance_analysis, worst_case, worst_checks, Corner, Distribution, Extreme,
-    Histogram, Level, MonteCarlo, MonteCarloSummary, Parameter, Quantity, RequirementYield,
-    Sensitivity, Setting, ToleranceReport, Tolerances, WorstCase, WorstCheck, DEFAULT_TRIALS,
-    MAX_TRIALS,
+    Histogram, Level, MonteCarlo, MonteCarloSummary, Parameter, RequirementYield, Sensitivity,
+    Setting, ToleranceReport, Tolerances, WorstCase, WorstCheck, DEFAULT_TRIALS, MAX_TRIALS,
 };
 pub use transistor::{
     Currents, Device, Polarity, TransistorData, CJC_BUILT_IN, CJC_GRADING, DEFAULT_BETA_REVERSE,

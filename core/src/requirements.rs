@@ -3,11 +3,17 @@
 //! Each requirement is optional. Voltage gain means the terminal gain
 //! V(load)/V(input terminal), in dB of its magnitude; swing is the symmetric
 //! peak at the load; the corners are those of the gain from the source.
+//!
+//! [`REQUIREMENTS`] is the one table of them: the key, the result it reads
+//! (a [`Quantity`], whose figure names it), the bound, the unit and what the
+//! file may hold. The checks here, the tolerance analysis' worst case and
+//! yields, the synthesis' shortfalls and the file reader all go through it.
 
 use alloc::vec::Vec;
 
 use crate::analysis::Analysis;
 use crate::decibel::db20;
+use crate::figures::Quantity;
 use crate::format::format_si;
 use crate::ratings::Check;
 use crate::response::{Bandwidth, Edge, Side, SEARCH_FROM, SEARCH_TO};
@@ -35,101 +41,258 @@ pub struct Requirements {
     pub max_junction_temperature: Option<f64>,
 }
 
+/// Which way a requirement bounds its result.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Bound {
+    /// The result must be at least the limit (`min_…`).
+    AtLeast,
+    /// The result must be at most the limit (`max_…`).
+    AtMost,
+}
+
+/// What a requirement's value in a file may be.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub(crate) enum Rule {
+    /// Any finite number.
+    Finite,
+    /// A finite number above 0.
+    Positive,
+    /// A finite number of 0 or more.
+    NonNegative,
+}
+
+/// One requirement: its key in the file and what it bounds.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub struct Requirement {
+    /// The key in the `requirements` block: `min_voltage_gain_db`.
+    pub key: &'static str,
+    /// The result it reads (its figure names it: "voltage gain").
+    pub quantity: Quantity,
+    /// At least or at most.
+    pub bound: Bound,
+    /// The unit of the limit: the result's, or dB for the voltage gain.
+    pub unit: &'static str,
+    /// What the file may hold.
+    pub(crate) rule: Rule,
+}
+
+impl Requirement {
+    /// The name of what it bounds: "voltage gain".
+    pub fn label(&self) -> &'static str {
+        self.quantity.figure().label
+    }
+
+    /// The corner it bounds, for the two corner requirements.
+    pub(crate) fn side(&self) -> Option<Side> {
+        match self.quantity {
+            Quantity::FLow => Some(Side::Lower),
+            Quantity::FHigh => Some(Side::Upper),
+            _ => None,
+        }
+    }
+
+    /// A value of its result in the requirement's unit (the voltage gain,
+    /// a ratio, in dB).
+    pub(crate) fn reading(&self, value: f64) -> f64 {
+        if self.unit == "dB" {
+            db20(libm::fabs(value))
+        } else {
+            value
+        }
+    }
+
+    /// Whether `value` (in the requirement's unit) meets `limit`: a value
+    /// that is not finite never does.
+    pub(crate) fn met(&self, value: f64, limit: f64) -> bool {
+        value.is_finite()
+            && match self.bound {
+                Bound::AtLeast => value >= limit,
+                Bound::AtMost => value <= limit,
+            }
+    }
+
+    /// The check of `value` against `limit`, the result named `what`.
+    pub(crate) fn check(&self, what: &str, value: f64, limit: f64) -> Check {
+        match self.bound {
+            Bound::AtLeast => Check::at_least(self.key, what, value, limit, self.unit),
+            Bound::AtMost => Check::at_most(self.key, what, value, limit, self.unit),
+        }
+    }
+}
+
+const fn req(
+    key: &'static str,
+    quantity: Quantity,
+    bound: Bound,
+    unit: &'static str,
+    rule: Rule,
+) -> Requirement {
+    Requirement {
+        key,
+        quantity,
+        bound,
+        unit,
+        rule,
+    }
+}
+
+/// Every requirement, in the order of the file format (and of the checks).
+pub const REQUIREMENTS: [Requirement; 9] = [
+    req(
+        "min_voltage_gain_db",
+        Quantity::VoltageGain,
+        Bound::AtLeast,
+        "dB",
+        Rule::Finite,
+    ),
+    req(
+        "max_voltage_gain_db",
+        Quantity::VoltageGain,
+        Bound::AtMost,
+        "dB",
+        Rule::Finite,
+    ),
+    req(
+        "min_input_impedance",
+        Quantity::InputImpedance,
+        Bound::AtLeast,
+        "Ω",
+        Rule::Positive,
+    ),
+    req(
+        "max_output_impedance",
+        Quantity::OutputImpedance,
+        Bound::AtMost,
+        "Ω",
+        Rule::Positive,
+    ),
+    req(
+        "min_swing",
+        Quantity::Swing,
+        Bound::AtLeast,
+        "V",
+        Rule::NonNegative,
+    ),
+    req(
+        "max_f_low",
+        Quantity::FLow,
+        Bound::AtMost,
+        "Hz",
+        Rule::Positive,
+    ),
+    req(
+        "min_f_high",
+        Quantity::FHigh,
+        Bound::AtLeast,
+        "Hz",
+        Rule::Positive,
+    ),
+    req(
+        "max_supply_current",
+        Quantity::SupplyCurrent,
+        Bound::AtMost,
+        "A",
+        Rule::Positive,
+    ),
+    req(
+        "max_junction_temperature",
+        Quantity::JunctionTemperature,
+        Bound::AtMost,
+        "°C",
+        Rule::Finite,
+    ),
+];
+
+/// The value of the result `q` in an analysis (the voltage gain as a
+/// magnitude, |VCE|; a corner that was not found is NaN).
+pub(crate) fn result_of(a: &Analysis, q: Quantity) -> f64 {
+    match q {
+        Quantity::Ic => a.operating_point.ic,
+        Quantity::Vce => libm::fabs(a.operating_point.vce),
+        Quantity::VoltageGain => libm::fabs(a.midband.voltage_gain),
+        Quantity::InputImpedance => a.midband.input_impedance,
+        Quantity::OutputImpedance => a.midband.output_impedance,
+        Quantity::Swing => a.swing.symmetric,
+        Quantity::FLow => a.bandwidth.f_low.unwrap_or(f64::NAN),
+        Quantity::FHigh => a.bandwidth.f_high.unwrap_or(f64::NAN),
+        Quantity::JunctionTemperature => a.dissipation.junction_temperature.celsius(),
+        Quantity::SupplyCurrent => a.dissipation.supply_current,
+    }
+}
+
 impl Requirements {
     /// True when no requirement is set.
     pub fn is_empty(&self) -> bool {
         *self == Requirements::default()
     }
 
-    /// Checks each requirement that is set, in the order of the fields.
+    /// The limit of the requirement `key`, if it is set.
+    pub fn get(&self, key: &str) -> Option<f64> {
+        *self.slot(key)?
+    }
+
+    /// Sets the limit of the requirement `key`; false for an unknown key.
+    pub(crate) fn set(&mut self, key: &str, limit: Option<f64>) -> bool {
+        match self.slot_mut(key) {
+            Some(s) => {
+                *s = limit;
+                true
+            }
+            None => false,
+        }
+    }
+
+    fn slot(&self, key: &str) -> Option<&Option<f64>> {
+        Some(match key {
+            "min_voltage_gain_db" => &self.min_voltage_gain_db,
+            "max_voltage_gain_db" => &self.max_voltage_gain_db,
+            "min_input_impedance" => &self.min_input_impedance,
+            "max_output_impedance" => &self.max_output_impedance,
+            "min_swing" => &self.min_swing,
+            "max_f_low" => &self.max_f_low,
+            "min_f_high" => &self.min_f_high,
+            "max_supply_current" => &self.max_supply_current,
+            "max_junction_temperature" => &self.max_junction_temperature,
+            _ => return None,
+        })
+    }
+
+    fn slot_mut(&mut self, key: &str) -> Option<&mut Option<f64>> {
+        Some(match key {
+            "min_voltage_gain_db" => &mut self.min_voltage_gain_db,
+            "max_voltage_gain_db" => &mut self.max_voltage_gain_db,
+            "min_input_impedance" => &mut self.min_input_impedance,
+            "max_output_impedance" => &mut self.max_output_impedance,
+            "min_swing" => &mut self.min_swing,
+            "max_f_low" => &mut self.max_f_low,
+            "min_f_high" => &mut self.min_f_high,
+            "max_supply_current" => &mut self.max_supply_current,
+            "max_junction_temperature" => &mut self.max_junction_temperature,
+            _ => return None,
+        })
+    }
+
+    /// Each requirement that is set, with its limit, in the table's order.
+    pub fn limits(&self) -> impl Iterator<Item = (&'static Requirement, f64)> + '_ {
+        REQUIREMENTS
+            .iter()
+            .filter_map(|r| self.get(r.key).map(|l| (r, l)))
+    }
+
+    /// Checks each requirement that is set, in the order of the table.
     pub fn check(&self, a: &Analysis) -> Vec<Check> {
-        let mut out = Vec::new();
-        let gain_db = db20(libm::fabs(a.midband.voltage_gain));
-        if let Some(l) = self.min_voltage_gain_db {
-            out.push(Check::at_least(
-                "min_voltage_gain_db",
-                "voltage gain",
-                gain_db,
-                l,
-                "dB",
-            ));
-        }
-        if let Some(l) = self.max_voltage_gain_db {
-            out.push(Check::at_most(
-                "max_voltage_gain_db",
-                "voltage gain",
-                gain_db,
-                l,
-                "dB",
-            ));
-        }
-        if let Some(l) = self.min_input_impedance {
-            out.push(Check::at_least(
-                "min_input_impedance",
-                "input impedance",
-                a.midband.input_impedance,
-                l,
-                "Ω",
-            ));
-        }
-        if let Some(l) = self.max_output_impedance {
-            out.push(Check::at_most(
-                "max_output_impedance",
-                "output impedance",
-                a.midband.output_impedance,
-                l,
-                "Ω",
-            ));
-        }
-        if let Some(l) = self.min_swing {
-            out.push(Check::at_least(
-                "min_swing",
-                "symmetric output swing (peak)",
-                a.swing.symmetric,
-                l,
-                "V",
-            ));
-        }
         let b = &a.bandwidth;
-        if let Some(l) = self.max_f_low {
-            out.push(corner_check(
-                Side::Lower,
-                "lower corner",
-                b.low_edge,
-                b.f_low,
-                l,
-                b,
-            ));
-        }
-        if let Some(l) = self.min_f_high {
-            out.push(corner_check(
-                Side::Upper,
-                "upper corner",
-                b.high_edge,
-                b.f_high,
-                l,
-                b,
-            ));
-        }
-        if let Some(l) = self.max_supply_current {
-            out.push(Check::at_most(
-                "max_supply_current",
-                "supply current",
-                a.dissipation.supply_current,
-                l,
-                "A",
-            ));
-        }
-        if let Some(l) = self.max_junction_temperature {
-            out.push(Check::at_most(
-                "max_junction_temperature",
-                "junction temperature",
-                a.dissipation.junction_temperature.celsius(),
-                l,
-                "°C",
-            ));
-        }
-        out
+        self.limits()
+            .map(|(r, limit)| match r.side() {
+                Some(Side::Lower) => {
+                    corner_check(Side::Lower, r.label(), b.low_edge, b.f_low, limit, b)
+                }
+                Some(Side::Upper) => {
+                    corner_check(Side::Upper, r.label(), b.high_edge, b.f_high, limit, b)
+                }
+                None => r.check(r.label(), r.reading(result_of(a, r.quantity)), limit),
+            })
+            .collect()
     }
 }
 

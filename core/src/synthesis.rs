@@ -106,12 +106,13 @@ use crate::corner::{corner_level, find_corner, ln_gain, Start};
 use crate::decibel::db20;
 use crate::error::{non_negative, positive, within, Error, Result};
 use crate::eseries::ESeries;
+use crate::figures::Quantity;
 use crate::format::format_si;
 use crate::hybrid_pi::SmallSignal;
 use crate::operating_point::{OperatingPoint, Region};
 use crate::parallel::parallel;
 use crate::ratings::{Check, Dissipation, RESISTOR_DERATING};
-use crate::requirements::Requirements;
+use crate::requirements::{Bound, Requirements};
 use crate::response::Response;
 use crate::response::Side;
 use crate::stage::{
@@ -1176,102 +1177,75 @@ impl<'a> Ctx<'a> {
             (Some(a), Some(b)) => b - a,
             _ => f64::INFINITY,
         };
-        let gm = if margin > 0.0 {
+        // The margin the gain is checked with, dB (not the transconductance).
+        let gain_margin_db = if margin > 0.0 {
             GAIN_CHECK_MARGIN_DB.min(0.25 * window)
         } else {
             0.0
         };
         // dB to nepers: a relative measure like the log ratios.
         let np = 1.0 / (20.0 * core::f64::consts::LOG10_E);
-        if let Some(l) = r.min_voltage_gain_db {
-            out.push(Gap {
-                id: "min_voltage_gain_db",
-                value: m.gain_db,
-                limit: l,
-                unit: "dB",
-                short: ln_short((l + gm - m.gain_db) * np),
-            });
-        }
-        if let Some(l) = r.max_voltage_gain_db {
-            out.push(Gap {
-                id: "max_voltage_gain_db",
-                value: m.gain_db,
-                limit: l,
-                unit: "dB",
-                short: ln_short((m.gain_db - l + gm) * np),
-            });
-        }
-        if let Some(l) = r.min_input_impedance {
-            out.push(Gap {
-                id: "min_input_impedance",
-                value: m.zin,
-                limit: l,
-                unit: "Ω",
-                short: ln_short(log_ratio(l * (1.0 + margin), m.zin)),
-            });
-        }
-        if let Some(l) = r.max_output_impedance {
-            out.push(Gap {
-                id: "max_output_impedance",
-                value: m.zout,
-                limit: l,
-                unit: "Ω",
-                short: ln_short(log_ratio(m.zout, l * (1.0 - margin))),
-            });
-        }
-        if let Some(l) = r.min_swing {
-            out.push(Gap {
-                id: "min_swing",
-                value: m.swing,
-                limit: l,
-                unit: "V",
-                short: ln_short(log_ratio(l * (1.0 + margin), m.swing)),
-            });
-        }
         let level = corner_level(&m.resp);
         let has_caps = {
             let p = &stage.parts;
             p.c_in.is_some() || p.c_out.is_some() || p.c_emitter.is_some() || p.c_base.is_some()
         };
-        if let (Some(l), true) = (r.max_f_low, has_caps) {
-            // |H(f)| at the limit at least the −3 dB level ⇔ the lower corner is below it.
-            let y = ln_gain(&m.resp, l * (1.0 - margin)).unwrap_or(f64::NEG_INFINITY) - level;
-            out.push(Gap {
-                id: "max_f_low",
-                value: f64::NAN,
-                limit: l,
-                unit: "Hz",
-                short: ln_short(-y),
-            });
-        }
-        if let Some(l) = r.min_f_high {
-            let y = ln_gain(&m.resp, l * (1.0 + margin)).unwrap_or(f64::NEG_INFINITY) - level;
-            out.push(Gap {
-                id: "min_f_high",
-                value: f64::NAN,
-                limit: l,
-                unit: "Hz",
-                short: ln_short(-y),
-            });
-        }
-        if let Some(l) = r.max_supply_current {
-            out.push(Gap {
-                id: "max_supply_current",
-                value: m.supply_current,
-                limit: l,
-                unit: "A",
-                short: ln_short(log_ratio(m.supply_current, l * (1.0 - margin))),
-            });
-        }
         let rise = |l: f64| (l - ta).max(1.0);
-        if let Some(l) = r.max_junction_temperature {
-            let lim = l - margin * rise(l);
+        // Each requirement of the table, its shortfall measured on the scale
+        // that suits it: nepers for the gain, the −3 dB level at the limit
+        // for a corner, the share of the rise over ambient for a
+        // temperature, the log ratio for the rest.
+        for (req, l) in r.limits() {
+            let at_least = req.bound == Bound::AtLeast;
+            let (value, short) = match req.quantity {
+                Quantity::VoltageGain => {
+                    let v = m.gain_db;
+                    let over = if at_least {
+                        l + gain_margin_db - v
+                    } else {
+                        v - l + gain_margin_db
+                    };
+                    (v, ln_short(over * np))
+                }
+                Quantity::FLow | Quantity::FHigh => {
+                    // |H(f)| at the limit at least the −3 dB level ⇔ the
+                    // corner is beyond it.
+                    let at = if req.quantity == Quantity::FLow {
+                        if !has_caps {
+                            continue;
+                        }
+                        l * (1.0 - margin)
+                    } else {
+                        l * (1.0 + margin)
+                    };
+                    let y = ln_gain(&m.resp, at).unwrap_or(f64::NEG_INFINITY) - level;
+                    (f64::NAN, ln_short(-y))
+                }
+                Quantity::JunctionTemperature => {
+                    let lim = l - margin * rise(l);
+                    (m.tj, ln_short((m.tj - lim) / rise(l)))
+                }
+                q => {
+                    let v = match q {
+                        Quantity::InputImpedance => m.zin,
+                        Quantity::OutputImpedance => m.zout,
+                        Quantity::Swing => m.swing,
+                        _ => m.supply_current,
+                    };
+                    let over = if at_least {
+                        log_ratio(l * (1.0 + margin), v)
+                    } else {
+                        log_ratio(v, l * (1.0 - margin))
+                    };
+                    (v, ln_short(over))
+                }
+            };
             out.push(Gap {
-                id: "max_junction_temperature",
-                value: m.tj,
+                id: req.key,
+                value,
                 limit: l,
-                unit: "°C",
-                short: ln_short((m.tj - lim) / rise(l)),
+                unit: req.unit,
+                short,
             });
         }
         out.push(Gap {

@@ -123,13 +123,13 @@ use alloc::vec::Vec;
 
 use crate::constants::Temperature;
 use crate::corner::{corner_level, find_corner, shape_at, Start, PRECISE};
-use crate::decibel::db20;
 use crate::error::{within, Error, Result};
+use crate::figures::Quantity;
 use crate::hybrid_pi::SmallSignal;
 use crate::operating_point::{OperatingPoint, Region};
 use crate::random::Stream;
 use crate::ratings::{Check, Dissipation};
-use crate::requirements::{corner_check, corner_met, Requirements};
+use crate::requirements::{corner_check, corner_met, Bound, Requirements, REQUIREMENTS};
 use crate::response::{Edge, Response, Side};
 use crate::stage::{Stage, MAX_SUPPLY};
 use crate::swing::Swing;
@@ -158,81 +158,6 @@ const SENSITIVITY_FLOOR: f64 = 1e-6;
 /// than one solve: the last secant step is below this, so the error of the
 /// point it reaches is of the order of this times the first step, ~10⁻⁵.
 const FAST: f64 = 1e-3;
-
-/// A result of the analysis that the tolerance analysis follows.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash)]
-#[cfg_attr(feature = "serde", derive(serde::Serialize))]
-#[cfg_attr(feature = "serde", serde(rename_all = "snake_case"))]
-pub enum Quantity {
-    /// Collector current, A.
-    Ic,
-    /// |VCE|, V.
-    Vce,
-    /// |midband terminal voltage gain|, V/V.
-    VoltageGain,
-    /// Midband input impedance, Ω.
-    InputImpedance,
-    /// Midband output impedance, Ω.
-    OutputImpedance,
-    /// Symmetric peak swing at the load, V.
-    Swing,
-    /// Lower −3 dB corner of the gain from the source, Hz.
-    FLow,
-    /// Upper −3 dB corner of the gain from the source, Hz.
-    FHigh,
-    /// Junction temperature at the quiescent point, °C.
-    JunctionTemperature,
-    /// Current drawn from the supply, A.
-    SupplyCurrent,
-}
-
-impl Quantity {
-    /// Every quantity, in report order.
-    pub const ALL: [Quantity; QUANTITIES] = [
-        Quantity::Ic,
-        Quantity::Vce,
-        Quantity::VoltageGain,
-        Quantity::InputImpedance,
-        Quantity::OutputImpedance,
-        Quantity::Swing,
-        Quantity::FLow,
-        Quantity::FHigh,
-        Quantity::JunctionTemperature,
-        Quantity::SupplyCurrent,
-    ];
-
-    /// The report key: `ic`, `vce`, `voltage_gain`, ...
-    pub fn name(self) -> &'static str {
-        match self {
-            Quantity::Ic => "ic",
-            Quantity::Vce => "vce",
-            Quantity::VoltageGain => "voltage_gain",
-            Quantity::InputImpedance => "input_impedance",
-            Quantity::OutputImpedance => "output_impedance",
-            Quantity::Swing => "swing",
-            Quantity::FLow => "f_low",
-            Quantity::FHigh => "f_high",
-            Quantity::JunctionTemperature => "junction_temperature",
-            Quantity::SupplyCurrent => "supply_current",
-        }
-    }
-
-    /// The unit symbol of the values (empty for the gain in V/V).
-    pub fn unit(self) -> &'static str {
-        match self {
-            Quantity::Ic | Quantity::SupplyCurrent => "A",
-            Quantity::Vce | Quantity::Swing => "V",
-            Quantity::VoltageGain => "",
-            Quantity::InputImpedance | Quantity::OutputImpedance => "Ω",
-            Quantity::FLow | Quantity::FHigh => "Hz",
-            Quantity::JunctionTemperature => "°C",
-        }
-    }
-
-    fn index(self) -> usize {
-        self as usize
-    }
-}
 
 /// A parameter that the tolerance analysis varies.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Hash)]
@@ -1136,47 +1061,28 @@ pub fn sensitivity(stage: &Stage) -> Result<Vec<Sensitivity>> {
     Ok(Model::new(stage, None)?.sensitivity()?.0)
 }
 
-/// The requirement ids in the order of [`Requirements`]' fields.
-const REQUIREMENT_IDS: [&str; 9] = [
-    "min_voltage_gain_db",
-    "max_voltage_gain_db",
-    "min_input_impedance",
-    "max_output_impedance",
-    "min_swing",
-    "max_f_low",
-    "min_f_high",
-    "max_supply_current",
-    "max_junction_temperature",
-];
-
-/// Which requirements `s` fails, as bits in the order of [`REQUIREMENT_IDS`],
+/// Which requirements `s` fails, as bits in the order of [`REQUIREMENTS`],
 /// with the meaning of [`Requirements::check`]: the corners by
 /// [`corner_met`], with `edges` the way the nominal stage's corner searches
 /// ended (a corner that the nominal stage has and `s` lacks fails).
 pub(crate) fn failed_requirements(r: &Requirements, s: &Sample, edges: [Edge; 2]) -> u32 {
-    let gain_db = db20(s.get(Quantity::VoltageGain));
-    let found = |q: Quantity| Some(s.get(q)).filter(|f| f.is_finite());
-    let corner = |side: Side, edge: Edge, q: Quantity, l: Option<f64>| {
-        l.is_none_or(|l| corner_met(side, edge, found(q), l))
-    };
-    let at_least = |v: f64, l: Option<f64>| l.is_none_or(|l| v.is_finite() && v >= l);
-    let at_most = |v: f64, l: Option<f64>| l.is_none_or(|l| v.is_finite() && v <= l);
-    let ok = [
-        at_least(gain_db, r.min_voltage_gain_db),
-        at_most(gain_db, r.max_voltage_gain_db),
-        at_least(s.get(Quantity::InputImpedance), r.min_input_impedance),
-        at_most(s.get(Quantity::OutputImpedance), r.max_output_impedance),
-        at_least(s.get(Quantity::Swing), r.min_swing),
-        corner(Side::Lower, edges[0], Quantity::FLow, r.max_f_low),
-        corner(Side::Upper, edges[1], Quantity::FHigh, r.min_f_high),
-        at_most(s.get(Quantity::SupplyCurrent), r.max_supply_current),
-        at_most(
-            s.get(Quantity::JunctionTemperature),
-            r.max_junction_temperature,
-        ),
-    ];
     let mut bits = 0;
-    for (k, pass) in ok.iter().enumerate() {
+    for (k, req) in REQUIREMENTS.iter().enumerate() {
+        let Some(limit) = r.get(req.key) else {
+            continue;
+        };
+        let value = s.get(req.quantity);
+        let pass = match req.side() {
+            Some(side) => {
+                let edge = if side == Side::Lower {
+                    edges[0]
+                } else {
+                    edges[1]
+                };
+                corner_met(side, edge, Some(value).filter(|f| f.is_finite()), limit)
+            }
+            None => req.met(req.reading(value), limit),
+        };
         if !pass {
             bits |= 1 << k;
         }
@@ -1191,7 +1097,7 @@ const NO_SOLUTION: u32 = 1 << 30;
 /// Bit of a trial's state: it solved, but not in the active region.
 const NOT_ACTIVE: u32 = 1 << 29;
 /// Bits of a trial's state that hold the failed requirements.
-const FAILED_MASK: u32 = (1 << REQUIREMENT_IDS.len()) - 1;
+const FAILED_MASK: u32 = (1 << REQUIREMENTS.len()) - 1;
 
 /// A Monte Carlo run, filled trial by trial (in one call or in chunks).
 #[derive(Debug, Clone)]
@@ -1426,7 +1332,7 @@ impl MonteCarlo {
         let mut passed = 0usize;
         let mut no_solution = 0usize;
         let mut not_active = 0usize;
-        let mut req_fail = [0usize; REQUIREMENT_IDS.len()];
+        let mut req_fail = [0usize; REQUIREMENTS.len()];
         for &s in &self.state {
             if s & DONE == 0 {
                 continue;
@@ -1453,24 +1359,12 @@ impl MonteCarlo {
             }
         };
         let r = &self.requirements;
-        let set = [
-            r.min_voltage_gain_db.is_some(),
-            r.max_voltage_gain_db.is_some(),
-            r.min_input_impedance.is_some(),
-            r.max_output_impedance.is_some(),
-            r.min_swing.is_some(),
-            r.max_f_low.is_some(),
-            r.min_f_high.is_some(),
-            r.max_supply_current.is_some(),
-            r.max_junction_temperature.is_some(),
-        ];
-        let requirements = REQUIREMENT_IDS
+        let requirements = REQUIREMENTS
             .iter()
-            .zip(set)
             .zip(req_fail)
-            .filter(|((_, on), _)| *on)
-            .map(|((id, _), failed)| RequirementYield {
-                requirement: id,
+            .filter(|(req, _)| r.get(req.key).is_some())
+            .map(|(req, failed)| RequirementYield {
+                requirement: req.key,
                 yield_fraction: share(done - failed),
             })
             .collect();
@@ -1587,65 +1481,22 @@ pub struct WorstCheck {
 /// judged as the nominal check judges it; the gain is compared in dB. The
 /// command line's `check --worst-case` and the page both judge with this.
 pub fn worst_checks(requirements: &Requirements, worst: &WorstCase) -> Vec<WorstCheck> {
-    use Quantity::*;
-    let r = requirements;
-    // (requirement, limit, result, true for a lower bound)
-    let rows = [
-        (
-            "min_voltage_gain_db",
-            r.min_voltage_gain_db,
-            VoltageGain,
-            true,
-        ),
-        (
-            "max_voltage_gain_db",
-            r.max_voltage_gain_db,
-            VoltageGain,
-            false,
-        ),
-        (
-            "min_input_impedance",
-            r.min_input_impedance,
-            InputImpedance,
-            true,
-        ),
-        (
-            "max_output_impedance",
-            r.max_output_impedance,
-            OutputImpedance,
-            false,
-        ),
-        ("min_swing", r.min_swing, Swing, true),
-        ("max_f_low", r.max_f_low, FLow, false),
-        ("min_f_high", r.min_f_high, FHigh, true),
-        (
-            "max_supply_current",
-            r.max_supply_current,
-            SupplyCurrent,
-            false,
-        ),
-        (
-            "max_junction_temperature",
-            r.max_junction_temperature,
-            JunctionTemperature,
-            false,
-        ),
-    ];
     let mut out = Vec::new();
-    for (id, limit, q, at_least) in rows {
-        let Some(limit) = limit else { continue };
+    for (req, limit) in requirements.limits() {
+        let what = ["worst-case ", req.label()].concat();
+        let at_least = req.bound == Bound::AtLeast;
         // A corner that is not found at every vertex: the rules of the
         // nominal check (`corner_met`), with what the box showed.
-        let side = match q {
-            FLow => Some((Side::Lower, worst.low_edge, "worst-case lower corner")),
-            FHigh => Some((Side::Upper, worst.high_edge, "worst-case upper corner")),
-            _ => None,
-        };
-        if let Some((side, edge, what)) = side {
+        if let Some(side) = req.side() {
+            let edge = if side == Side::Lower {
+                worst.low_edge
+            } else {
+                worst.high_edge
+            };
             if edge == Edge::NoPassband {
                 let bound = if at_least { "at least" } else { "at most" };
                 let check = Check {
-                    id: id.into(),
+                    id: req.key.into(),
                     pass: false,
                     value: 0.0,
                     limit,
@@ -1662,7 +1513,7 @@ pub fn worst_checks(requirements: &Requirements, worst: &WorstCase) -> Vec<Worst
                 continue;
             }
             if edge != Edge::Corner {
-                let check = corner_check(side, what, edge, None, limit, &Default::default());
+                let check = corner_check(side, &what, edge, None, limit, &Default::default());
                 out.push(WorstCheck {
                     check,
                     corner: None,
@@ -1670,32 +1521,12 @@ pub fn worst_checks(requirements: &Requirements, worst: &WorstCase) -> Vec<Worst
                 continue;
             }
         }
-        let (value, corner) = match worst.get(q) {
+        let (value, corner) = match worst.get(req.quantity) {
             Some(e) if at_least => (e.min, Some(e.min_corner.clone())),
             Some(e) => (e.max, Some(e.max_corner.clone())),
             None => (f64::NAN, None),
         };
-        let (value, unit) = match q {
-            VoltageGain => (db20(value), "dB"),
-            _ => (value, q.unit()),
-        };
-        let what = match q {
-            VoltageGain => "worst-case voltage gain",
-            InputImpedance => "worst-case input impedance",
-            OutputImpedance => "worst-case output impedance",
-            Swing => "worst-case symmetric output swing (peak)",
-            FLow => "worst-case lower corner",
-            FHigh => "worst-case upper corner",
-            SupplyCurrent => "worst-case supply current",
-            JunctionTemperature => "worst-case junction temperature",
-            Ic => "worst-case ic",
-            Vce => "worst-case vce",
-        };
-        let check = if at_least {
-            Check::at_least(id, what, value, limit, unit)
-        } else {
-            Check::at_most(id, what, value, limit, unit)
-        };
+        let check = req.check(&what, req.reading(value), limit);
         out.push(WorstCheck { check, corner });
     }
     out
@@ -1735,6 +1566,7 @@ pub fn tolerance_analysis(
 #[cfg(test)]
 mod tests {
     use super::*;
+    use crate::decibel::db20;
     use crate::presets::preset;
     use crate::stage::{Parts, StageKind};
     use alloc::vec::Vec;

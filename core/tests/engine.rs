@@ -33,7 +33,7 @@ use stagewright::{
     Tolerances, DEFAULT_TRIALS, MAX_DEPTH, MAX_ECHO, MAX_NOTES, MAX_SUPPLY, MAX_TITLE, MAX_TRIALS,
     MIN_RESISTANCE, OPEN_RESISTANCE, PRESETS, SEARCH_FROM, SEARCH_TO,
 };
-use stagewright::{utf8_text, Report, FIGURES};
+use stagewright::{utf8_text, Bound, Report, RequirementsDocument, FIGURES, REQUIREMENTS};
 
 /// |a − b| / max(|a|, |b|), 0 when both are 0.
 fn rel(a: f64, b: f64) -> f64 {
@@ -691,6 +691,49 @@ fn names_every_figure_is_a_number_of_the_report() {
         assert!(!f.label.is_empty() && !f.row_label().is_empty());
     }
     assert!(FIGURES.len() >= 30);
+}
+
+#[test]
+fn requirements_table_is_the_file_format() {
+    // The one table of requirements: the same keys, in the same order, as
+    // the design file's requirements block; each bound is named by its
+    // prefix; a file setting every key reads back the table's limits.
+    let keys: Vec<&str> = REQUIREMENTS.iter().map(|r| r.key).collect();
+    let block: Vec<&str> = RequirementsDocument::KEYS
+        .iter()
+        .map(|k| k.trim_start_matches("requirements."))
+        .collect();
+    assert_eq!(keys, block);
+    let mut text = String::from(
+        r#"{"format": "stagewright/1", "stage": "common-collector", "supply": 12,
+        "transistor": {"preset": "general-purpose-npn"},
+        "parts": {"r1": "47k", "r2": "47k", "re": "2k2"}, "requirements": {"#,
+    );
+    for (i, r) in REQUIREMENTS.iter().enumerate() {
+        let prefix = if r.bound == Bound::AtLeast {
+            "min_"
+        } else {
+            "max_"
+        };
+        assert!(r.key.starts_with(prefix), "{}", r.key);
+        assert!(!r.label().is_empty());
+        if i > 0 {
+            text.push(',');
+        }
+        // Limits that pass each rule: 1, 2, 3, … in the requirement's unit.
+        text.push_str(&format!(r#""{}": {}"#, r.key, i + 1));
+    }
+    text.push_str("}}");
+    // min_voltage_gain_db 1 dB, max 2 dB: consistent; every other positive.
+    let d = Design::from_json(&text).expect("a file with every requirement reads");
+    let limits: Vec<(&str, f64)> = d.requirements.limits().map(|(r, l)| (r.key, l)).collect();
+    assert_eq!(limits.len(), REQUIREMENTS.len());
+    for (i, (key, l)) in limits.iter().enumerate() {
+        assert_eq!(*key, REQUIREMENTS[i].key);
+        assert_eq!(*l, (i + 1) as f64);
+        assert_eq!(d.requirements.get(key), Some(*l));
+    }
+    assert_eq!(d.requirements.get("no_such_key"), None);
 }
 
 #[test]

@@ -450,6 +450,9 @@ const COVERAGE: &[(&str, Covered)] = &[
         "FIGURES",
         Api("names_every_figure_is_a_number_of_the_report"),
     ),
+    ("Bound", Api("requirements_table_is_the_file_format")),
+    ("Requirement", Api("requirements_table_is_the_file_format")),
+    ("REQUIREMENTS", Api("requirements_table_is_the_file_format")),
     (
         "Edge",
         Reference("nodal", "no_passband_agrees_with_independent_nodal_solve"),

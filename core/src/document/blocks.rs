@@ -13,7 +13,7 @@ use super::typed::{file_celsius, optional, Typed};
 use crate::constants::Temperature;
 use crate::error::{non_negative, positive, Error, ErrorKind, Result};
 use crate::presets::preset;
-use crate::requirements::Requirements;
+use crate::requirements::{Requirements, Rule, REQUIREMENTS};
 use crate::stage::StageKind;
 use crate::transistor::{Polarity, TransistorData, DEFAULT_BETA_REVERSE, DEFAULT_XTB};
 
@@ -184,31 +184,18 @@ pub(crate) fn transistor_from(t: &TransistorDocument) -> Result<TransistorData> 
 
 pub(crate) fn requirements_from(r: &RequirementsDocument) -> Result<Requirements> {
     let field = |name: &str| path("requirements", name);
-    let finite = |v: &Option<Typed>, name: &str, unit: &'static str| -> Result<Option<f64>> {
-        optional(v, &field(name), unit)
-    };
-    let pos = |v: &Option<Typed>, name: &str, unit: &'static str| -> Result<Option<f64>> {
-        optional(v, &field(name), unit)?
-            .map(|x| positive(&field(name), x, unit))
-            .transpose()
-    };
-    let out = Requirements {
-        min_voltage_gain_db: finite(&r.min_voltage_gain_db, "min_voltage_gain_db", "dB")?,
-        max_voltage_gain_db: finite(&r.max_voltage_gain_db, "max_voltage_gain_db", "dB")?,
-        min_input_impedance: pos(&r.min_input_impedance, "min_input_impedance", "Ω")?,
-        max_output_impedance: pos(&r.max_output_impedance, "max_output_impedance", "Ω")?,
-        min_swing: finite(&r.min_swing, "min_swing", "V")?
-            .map(|x| non_negative(&field("min_swing"), x, "V"))
-            .transpose()?,
-        max_f_low: pos(&r.max_f_low, "max_f_low", "Hz")?,
-        min_f_high: pos(&r.min_f_high, "min_f_high", "Hz")?,
-        max_supply_current: pos(&r.max_supply_current, "max_supply_current", "A")?,
-        max_junction_temperature: finite(
-            &r.max_junction_temperature,
-            "max_junction_temperature",
-            "°C",
-        )?,
-    };
+    let mut out = Requirements::default();
+    for req in &REQUIREMENTS {
+        let name = field(req.key);
+        let value = optional(&r.value(req.key).cloned(), &name, req.unit)?
+            .map(|x| match req.rule {
+                Rule::Finite => Ok(x),
+                Rule::Positive => positive(&name, x, req.unit),
+                Rule::NonNegative => non_negative(&name, x, req.unit),
+            })
+            .transpose()?;
+        out.set(req.key, value);
+    }
     if let (Some(lo), Some(hi)) = (out.min_voltage_gain_db, out.max_voltage_gain_db) {
         if lo > hi {
             let mut reason = String::new();

@@ -43,6 +43,15 @@ macro_rules! block {
                 $(concat!($prefix, ".", stringify!($v)),)*
             ];
 
+            /// The value of the key `key` of this block, as typed.
+            #[allow(dead_code)]
+            pub(crate) fn value(&self, key: &str) -> Option<&$crate::document::Typed> {
+                match key {
+                    $(stringify!($v) => self.$v.as_ref(),)*
+                    _ => None,
+                }
+            }
+
             pub(crate) fn read(
                 value: &::serde_json::Value,
                 schema: &$crate::document::Schema,
