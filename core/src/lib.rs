@@ -115,8 +115,8 @@ pub use constants::{
 };
 pub use decibel::{db10, db20};
 #[cfg(feature = "serde")]
-#[cfg(feature = "serde")]
 pub use design::Design;
+#[cfg(feature = "serde")]
 pub use design_file::{DesignDocument, PartsDocument, TolerancesDocument};
 #[cfg(feature = "serde")]
 pub use document::{

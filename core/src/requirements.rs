@@ -232,7 +232,7 @@ impl Requirements {
     }
 
     /// Sets the limit of the requirement `key`; false for an unknown key.
-    pub(crate) fn set(&mut self, key: &str, limit: Option<f64>) -> bool {
+    pub fn set(&mut self, key: &str, limit: Option<f64>) -> bool {
         match self.slot_mut(key) {
             Some(s) => {
                 *s = limit;
