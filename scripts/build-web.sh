@@ -46,25 +46,21 @@ if ! rustup target list --installed | grep -qx "$TARGET"; then
 fi
 
 # 2. The lock file decides the wasm-bindgen version; the CLI must match it.
-if [ ! -f Cargo.lock ]; then
-  say "creating Cargo.lock"
-  cargo generate-lockfile
-fi
-WB_VERSION="$(awk '
-  /^\[\[package\]\]/ { in_wb = 0 }
-  /^name = "wasm-bindgen"$/ { in_wb = 1; next }
-  in_wb && /^version = / { gsub(/version = |"/, ""); print; exit }
-' Cargo.lock)"
+# The wasm-bindgen crate version the build resolves (cargo metadata reads
+# the lock file, and creates it if it is missing); the CLI must match it.
+WB_VERSION="$(cargo metadata --format-version 1 --offline 2>/dev/null | node -e '
+  let t = ""; process.stdin.on("data", (d) => (t += d)).on("end", () => {
+    const p = JSON.parse(t).packages.find((p) => p.name === "wasm-bindgen");
+    if (p) console.log(p.version);
+  });' || true)"
 if [ -z "$WB_VERSION" ]; then
-  # The lock file predates the wasm crate: let cargo add it.
-  cargo metadata --format-version 1 >/dev/null
-  WB_VERSION="$(awk '
-    /^\[\[package\]\]/ { in_wb = 0 }
-    /^name = "wasm-bindgen"$/ { in_wb = 1; next }
-    in_wb && /^version = / { gsub(/version = |"/, ""); print; exit }
-  ' Cargo.lock)"
+  WB_VERSION="$(cargo metadata --format-version 1 | node -e '
+    let t = ""; process.stdin.on("data", (d) => (t += d)).on("end", () => {
+      const p = JSON.parse(t).packages.find((p) => p.name === "wasm-bindgen");
+      if (p) console.log(p.version);
+    });')"
 fi
-[ -n "$WB_VERSION" ] || { echo "build-web.sh: no wasm-bindgen in Cargo.lock" >&2; exit 1; }
+[ -n "$WB_VERSION" ] || { echo "build-web.sh: cargo metadata names no wasm-bindgen" >&2; exit 1; }
 
 HAVE_WB="$(wasm-bindgen --version 2>/dev/null | awk '{print $2}' || true)"
 if [ "$HAVE_WB" != "$WB_VERSION" ]; then

@@ -25,6 +25,7 @@ RUSTDOCFLAGS="-D warnings" cargo doc --workspace --no-deps
 
 step "core without std for thumbv6m-none-eabi"
 cargo build -p stagewright --no-default-features --target thumbv6m-none-eabi
+cargo build -p stagewright --no-default-features --features serde --target thumbv6m-none-eabi
 
 if [ -f scripts/build-web.sh ]; then
   step "web build"

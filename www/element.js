@@ -1975,19 +1975,13 @@ class StagewrightCalc extends HTMLElement {
     const cautions = Array.isArray(report.cautions) ? report.cautions : [];
     const ul = this._cautions.querySelector("ul");
     ul.textContent = "";
-    // The engine ends each safety caution with its deferral to local codes
-    // and licensed practice: said once, under the list.
-    let deferral = "";
+    // The deferral to local codes and licensed practice, once under the
+    // list; marked when a caution is about harm (the engine's `safety`).
     for (const c of cautions) {
-      let text = typeof c.message === "string" ? c.message : String(c.id);
-      const cut = text.indexOf(" These figures are design aids");
-      if (cut > 0) {
-        deferral = text.slice(cut + 1);
-        text = text.slice(0, cut);
-      }
-      ul.append(h("li", { "data-id": String(c.id || "") }, text));
+      ul.append(h("li", { "data-id": String(c.id || "") }, typeof c.message === "string" ? c.message : String(c.id)));
     }
-    this._cautions.querySelector(".deferral").textContent = deferral ? `${deferral} ${DEFERRAL}` : DEFERRAL;
+    const deferral = this._cautions.querySelector(".deferral");
+    deferral.classList.toggle("safety", cautions.some((c) => c.safety === true));
     this._cautions.hidden = cautions.length === 0;
   }
 

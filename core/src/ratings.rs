@@ -40,7 +40,9 @@ pub const ES1_DC_LIMIT: f64 = 60.0;
 /// bias counts as not stabilised (common practice: ±10 %).
 pub const BIAS_STABILITY_LIMIT: f64 = 0.10;
 
-/// The sentence appended to every safety caution.
+/// The sentence that defers to local codes and licensed practice, written
+/// once under the cautions when one of them is a safety caution
+/// ([`Caution::safety`]).
 pub const DEFERRAL: &str =
     "These figures are design aids, not a safety assessment: follow local codes and licensed practice.";
 
@@ -134,6 +136,10 @@ pub struct Caution {
     pub id: String,
     /// The sentence shown to the user.
     pub message: String,
+    /// True for a caution about harm (shock, heat, a rating exceeded):
+    /// a renderer writes [`DEFERRAL`] once under the cautions when one of
+    /// them is.
+    pub safety: bool,
 }
 
 /// Where the power goes at the quiescent point.
@@ -252,6 +258,7 @@ pub struct BiasStability {
 /// midband gain ([`crate::Edge::NoPassband`]), if that is the case.
 pub(crate) fn passband_caution(b: &crate::response::Bandwidth) -> Option<Caution> {
     (b.low_edge == crate::response::Edge::NoPassband).then(|| Caution {
+        safety: false,
         id: "no-passband".into(),
         message: format!(
             "The response never comes within 3 dB of the midband gain: its peak is {} below it, at {}. \
@@ -272,28 +279,31 @@ pub fn cautions(
     stability: Option<&BiasStability>,
 ) -> Vec<Caution> {
     let mut out = Vec::new();
-    let mut push = |id: String, message: String| out.push(Caution { id, message });
+    let mut push = |id: String, message: String, safety: bool| {
+        out.push(Caution {
+            id,
+            message,
+            safety,
+        })
+    };
     if stage.supply > ES1_DC_LIMIT {
         push(
             "hazardous-voltage".into(),
             format!(
                 "The supply of {} is above the {} V DC limit of the extra-low-voltage class ES1 (IEC 62368-1): \
-                 it can give an electric shock. Insulation, spacing, enclosure and the supply itself need a qualified review. {DEFERRAL}",
+                 it can give an electric shock. Insulation, spacing, enclosure and the supply itself need a qualified review.",
                 format_si(stage.supply, "V"),
                 ES1_DC_LIMIT
-            ),
-        );
+            ), true);
     }
     match op.region {
         Region::Active => {}
         Region::Saturation => push(
             "region-saturation".into(),
-            "The transistor is saturated at the quiescent point: it does not amplify. Lower the base drive or the collector resistance.".into(),
-        ),
+            "The transistor is saturated at the quiescent point: it does not amplify. Lower the base drive or the collector resistance.".into(), false),
         Region::Cutoff => push(
             "region-cutoff".into(),
-            "The transistor is cut off at the quiescent point: it does not amplify. Check the base divider and the polarity.".into(),
-        ),
+            "The transistor is cut off at the quiescent point: it does not amplify. Check the base divider and the polarity.".into(), false),
     }
     for c in checks {
         if !c.id.starts_with("resistor_power.")
@@ -305,9 +315,10 @@ pub fn cautions(
             push(
                 format!("rating-exceeded.{}", c.id),
                 format!(
-                    "Rating exceeded: {}. The part can fail or overheat. {DEFERRAL}",
+                    "Rating exceeded: {}. The part can fail or overheat.",
                     c.message
                 ),
+                true,
             );
         } else if c.limit > 0.0 && c.value > RATING_MARGIN * c.limit {
             push(
@@ -316,8 +327,7 @@ pub fn cautions(
                     "Less than 20 % margin: {} ({:.0} % of the limit). Allow for tolerance, temperature and transients.",
                     c.message,
                     100.0 * c.value / c.limit
-                ),
-            );
+                ), false);
         }
     }
     let tj = d.junction_temperature.celsius();
@@ -326,21 +336,19 @@ pub fn cautions(
             "hot-transistor".into(),
             format!(
                 "The transistor runs at about {tj:.0} °C junction temperature ({} dissipated): its package is hot enough to burn \
-                 and to age nearby parts. Keep it clear of touch and of heat-sensitive parts. {DEFERRAL}",
+                 and to age nearby parts. Keep it clear of touch and of heat-sensitive parts.",
                 format_si(d.transistor, "W")
-            ),
-        );
+            ), true);
     }
     for &(name, w) in &d.resistors {
         if w > RESISTOR_DERATING * stage.parts.resistor_rating {
             push(
                 format!("hot-resistor.{name}"),
                 format!(
-                    "{name} dissipates {}, more than half of its {} rating: it runs hot. Use a larger rating or spread the power. {DEFERRAL}",
+                    "{name} dissipates {}, more than half of its {} rating: it runs hot. Use a larger rating or spread the power.",
                     format_si(w, "W"),
                     format_si(stage.parts.resistor_rating, "W")
-                ),
-            );
+                ), true);
         }
     }
     if let Some(s) = stability {
@@ -351,8 +359,7 @@ pub fn cautions(
                     "The collector current moves by {:.0} % across the transistor's hFE range: the bias is not stabilised. \
                      Make the divider stiffer (RTH ≤ 0.1·hfe_min·RE) or add emitter resistance.",
                     100.0 * s.across_hfe
-                ),
-            );
+                ), false);
         }
         if op.region == Region::Active && s.over_temperature > BIAS_STABILITY_LIMIT {
             push(
@@ -361,8 +368,7 @@ pub fn cautions(
                     "The collector current moves by {:.0} % for a 25 K rise in ambient: the bias is not stabilised against temperature. \
                      Give the emitter resistor a larger DC drop (VBE falls about 2 mV/K).",
                     100.0 * s.over_temperature
-                ),
-            );
+                ), false);
         }
     }
     if stage.kind == StageKind::CommonEmitter
@@ -371,8 +377,7 @@ pub fn cautions(
     {
         push(
             "no-emitter-resistance".into(),
-            "The emitter is grounded: the bias depends directly on VBE and hFE. Add emitter resistance.".into(),
-        );
+            "The emitter is grounded: the bias depends directly on VBE and hFE. Add emitter resistance.".into(), false);
     }
     out
 }

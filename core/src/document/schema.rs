@@ -92,32 +92,39 @@ impl Schema {
         self.keys.iter().flat_map(|g| g.iter()).copied()
     }
 
-    /// Rejects the first key of `map` (in file order) that the block
-    /// `prefix` does not know.
+    /// Rejects an empty key of `map`, else the first key in sorted order
+    /// that the block `prefix` does not know (sorted, so that the key
+    /// reported does not depend on how the JSON map keeps its keys: the
+    /// command line keeps the file's order, the page's engine sorts them).
     pub(crate) fn check_keys(&self, map: &Map<String, Value>, prefix: &str) -> Result<()> {
-        for key in map.keys() {
-            if key.trim().is_empty() {
-                let mut reason = String::from("a key is empty (\"\")");
-                reason.push_str(if prefix.is_empty() {
-                    " at the top level of the file"
-                } else {
-                    " in this block"
-                });
-                reason.push_str("; every key is a name such as \"supply\" or \"rc\"");
-                let field = if prefix.is_empty() { "file" } else { prefix };
-                return Err(Error::new(field, ErrorKind::Document { reason }));
-            }
-            let known = self.all().any(|p| parent(p) == prefix && leaf(p) == key);
-            if !known {
-                return Err(Error::new(
-                    path(prefix, &echo(key)),
-                    ErrorKind::UnknownKey {
-                        suggestion: self.suggest(prefix, key),
-                    },
-                ));
-            }
+        if map.keys().any(|k| k.trim().is_empty()) {
+            let mut reason = String::from("a key is empty (\"\")");
+            reason.push_str(if prefix.is_empty() {
+                " at the top level of the file"
+            } else {
+                " in this block"
+            });
+            reason.push_str("; every key is a name such as \"supply\" or \"rc\"");
+            let field = if prefix.is_empty() { "file" } else { prefix };
+            return Err(Error::new(field, ErrorKind::Document { reason }));
         }
-        Ok(())
+        let unknown = map
+            .keys()
+            .filter(|key| {
+                !self
+                    .all()
+                    .any(|p| parent(p) == prefix && leaf(p) == key.as_str())
+            })
+            .min();
+        match unknown {
+            Some(key) => Err(Error::new(
+                path(prefix, &echo(key)),
+                ErrorKind::UnknownKey {
+                    suggestion: self.suggest(prefix, key),
+                },
+            )),
+            None => Ok(()),
+        }
     }
 
     /// The nearest known key for an unknown `key` in the block `prefix`:

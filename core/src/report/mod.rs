@@ -85,6 +85,7 @@
 //! | `cautions` | | a list of things a reviewer should see |
 //! | `cautions[].id` | | a stable identifier such as `bias-unstable-hfe` |
 //! | `cautions[].message` | | a sentence |
+//! | `cautions[].safety` | | `true` for a caution about harm (shock, heat, a rating exceeded); a reader shows the deferral to local codes and licensed practice once when one is |
 //!
 //! # Sweep
 //! A [`SweepTable`] holds the response at log-spaced frequencies; its
@@ -252,6 +253,7 @@ struct CheckEntry {
 struct CautionEntry {
     id: String,
     message: String,
+    safety: bool,
 }
 
 impl Report {
@@ -357,6 +359,7 @@ impl Report {
                 .map(|c| CautionEntry {
                     id: c.id.clone(),
                     message: c.message.clone(),
+                    safety: c.safety,
                 })
                 .collect(),
             core_checks,

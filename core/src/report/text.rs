@@ -261,8 +261,7 @@ impl Report {
         } else {
             head(&mut o, "Cautions", "");
             for c in &self.cautions {
-                let message = c.message.replace(DEFERRAL, "");
-                let _ = writeln!(o, "  ! {}: {}", c.id, message.trim_end());
+                let _ = writeln!(o, "  ! {}: {}", c.id, c.message);
             }
         }
         let _ = writeln!(o, "\n{DEFERRAL}");
