@@ -3,8 +3,8 @@
 //! Source: SI Brochure, 9th edition (BIPM, 2019), section 2.2: the
 //! elementary charge and the Boltzmann constant are exact by definition.
 //! The thermal voltages 25.693 mV at 25 °C and 25.852 mV at 300 K are
-//! REFERENCES.md "(computed)" figures: the test recomputes kT/q from the
-//! defining constants typed here, independently of the core's copies.
+//! docs/references.md "(computed)" figures: the test recomputes kT/q from
+//! the defining constants typed here, independently of the core's copies.
 
 use stagewright::{
     thermal_voltage, Temperature, BOLTZMANN, DATASHEET_TEMPERATURE, ELEMENTARY_CHARGE, ZERO_CELSIUS,
@@ -104,7 +104,7 @@ fn thermal_voltage_is_kt_over_q() {
             allowed::RECOMPUTED,
         );
         check(
-            "REFERENCES.md (computed from the SI constants)",
+            "docs/references.md (computed from the SI constants)",
             &format!("VT at {} K, published", t.kelvin()),
             thermal_voltage(t),
             published,

@@ -81,7 +81,7 @@ fn test_device(inv_va: f64) -> Device {
 
 #[test]
 fn ebers_moll_transport_equations() {
-    // Published (Jaeger & Blalock; REFERENCES.md):
+    // Published (Jaeger & Blalock; docs/references.md):
     //   iT = IS(e^(vBE/VT) − e^(vBC/VT))(1 + vCE/VA)
     //   iC = iT − (IS/βR)(e^(vBC/VT) − 1)
     //   iB = (IS/βF)(e^(vBE/VT) − 1) + (IS/βR)(e^(vBC/VT) − 1)
@@ -281,10 +281,10 @@ fn gummel_poon_temperature_laws() {
 
 #[test]
 fn vbe_falls_about_2_mv_per_kelvin() {
-    // Rule of thumb (Sedra & Smith; REFERENCES.md): at a fixed collector
-    // current VBE falls about 2 mV/K near room temperature. The formula of
-    // the model, dVBE/dT = (VBE − EG − 3·VT)/T, is computed here and
-    // compared with a central difference of the core's VBE(T).
+    // Rule of thumb (Sedra & Smith; docs/references.md): at a fixed
+    // collector current VBE falls about 2 mV/K near room temperature. The
+    // formula of the model, dVBE/dT = (VBE − EG − 3·VT)/T, is computed here
+    // and compared with a central difference of the core's VBE(T).
     let t = preset("general-purpose-npn").expect("preset");
     let h = 0.01;
     for (ic, celsius) in [
@@ -387,10 +387,10 @@ fn hybrid_pi_relations() {
 
 #[test]
 fn junction_capacitance_law() {
-    // Sedra & Smith problem 3.25 (REFERENCES.md, computed): Cj0 = 0.4 pF,
-    // V0 = 0.75 V, m = 1/3 gives 0.30 pF at 1 V and 0.165 pF at 10 V.
-    // The core grades Cob from its stated VCB; stating Cob = Cj0 at 0 V
-    // makes the core's law C = Cj0/(1 + VR/V0)^m.
+    // Sedra & Smith problem 3.25 (docs/references.md, computed):
+    // Cj0 = 0.4 pF, V0 = 0.75 V, m = 1/3 gives 0.30 pF at 1 V and 0.165 pF
+    // at 10 V. The core grades Cob from its stated VCB; stating Cob = Cj0
+    // at 0 V makes the core's law C = Cj0/(1 + VR/V0)^m.
     const SOURCE: &str = "Sedra & Smith, Microelectronic Circuits, problem 3.25";
     check(
         SOURCE,

@@ -187,7 +187,7 @@ fn departures_from_the_formula_are_the_known_exceptions() {
         }
         assert_eq!(
             found, case.exceptions,
-            "{}: entries departing from round(10^(i/n)); source: {IEC_60063} (REFERENCES.md)",
+            "{}: entries departing from round(10^(i/n)); source: {IEC_60063} (docs/references.md)",
             case.series
         );
     }

@@ -3,8 +3,8 @@
 //! LU, against the core's [`Response::at`]; and the textbook closed forms
 //! ([`Midband::closed_form`]) against the core's nodal midband.
 //!
-//! Source: REFERENCES.md, "Independent numerics": a general complex linear
-//! solve of the full nodal matrix is an independent check of every
+//! Source: docs/references.md, "Independent numerics": a general complex
+//! linear solve of the full nodal matrix is an independent check of every
 //! closed-form midband formula and of the frequency sweep.
 //!
 //! The network here is written from the stage table of the core's `stage`
@@ -27,7 +27,7 @@ use stagewright::{
 use stagewright_crosschecks::{check, rel_diff, Allowed};
 
 const SOURCE: &str =
-    "REFERENCES.md, independent numerics (nalgebra complex LU of the full nodal matrix)";
+    "docs/references.md, independent numerics (nalgebra complex LU of the full nodal matrix)";
 
 /// Allowed errors, per quantity, and why.
 mod allowed {

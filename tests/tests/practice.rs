@@ -1,6 +1,6 @@
-//! Relations of the trade (REFERENCES.md, "common practice, no single
-//! source"), the decibel and SI-prefix conventions, and the safety limits
-//! the cautions rest on.
+//! Relations of the trade (docs/references.md, "common practice, no
+//! single source"), the decibel and SI-prefix conventions, and the safety
+//! limits the cautions rest on.
 //!
 //! Each test names its source; where the relation is an approximation, the
 //! tolerance says which terms it drops and how large they are here.
@@ -13,7 +13,7 @@ use stagewright::{
 };
 use stagewright_crosschecks::{book_transistor, check, check_between, Allowed};
 
-const TRADE: &str = "common practice (REFERENCES.md, relations of the trade)";
+const TRADE: &str = "common practice (docs/references.md, relations of the trade)";
 
 /// Allowed errors, per quantity, and why.
 mod allowed {

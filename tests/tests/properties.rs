@@ -310,14 +310,15 @@ proptest! {
                 for (name, v) in figures(&a) {
                     prop_assert!(v.is_finite(), "{name} = {v} for {s:?}");
                 }
-                // KCL (REFERENCES.md: KCL residual near zero). Allowed:
-                // 1e-9 of the largest current that flows (the Newton solve
-                // stops at steps of 1e-11 V and converges quadratically),
-                // plus the rounding of the reported node voltages: they are
-                // voltages to ground, exact to a few ε·VCC (the loop
-                // equations sum terms as large as VCC, and a PNP stage's
-                // voltages are mirrored as VCC − v), and the residual check
-                // turns that into ε·VCC/R through the smallest resistor R;
+                // KCL (docs/references.md, "Invariants": KCL residual near
+                // zero). Allowed: 1e-9 of the largest current that flows
+                // (the Newton solve stops at steps of 1e-11 V and converges
+                // quadratically), plus the rounding of the reported node
+                // voltages: they are voltages to ground, exact to a few
+                // ε·VCC (the loop equations sum terms as large as VCC, and a
+                // PNP stage's voltages are mirrored as VCC − v), and the
+                // residual check turns that into ε·VCC/R through the
+                // smallest resistor R;
                 // 64·ε·VCC/R (1.4e-12 A through 1 Ω at 100 V; up to 19·ε was
                 // seen in 20 000 cases), plus 1e-18 A for a network that
                 // carries almost nothing. A solve that had not converged

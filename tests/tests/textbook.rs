@@ -4,8 +4,9 @@
 //! The device is [`book_transistor`]: the general-purpose NPN preset with
 //! the book's β (one value, no spread), no Early effect, rbb' = 0 where the
 //! book ignores it, and VBE = 0.7 V at the book's collector current, which is
-//! what the books assume. The figures come from REFERENCES.md; those marked
-//! "(memory)" there were recalled, not read, and each test says so.
+//! what the books assume. The figures come from docs/references.md,
+//! "Worked examples"; those marked "(memory)" there were recalled, not
+//! read, and each test says so.
 //!
 //! The books round to two or three digits and make approximations the core
 //! does not (a stiff divider, IC ≈ IE, VT = 25 or 26 mV); each tolerance
