@@ -556,7 +556,7 @@ const ENGINE_RS: &str = include_str!("../../core/tests/engine.rs");
 /// The core modules whose unit tests cover exported items.
 const CORE_MODULES: &[(&str, &str)] = &[
     ("synthesis", include_str!("../../core/src/synthesis.rs")),
-    ("tolerance", include_str!("../../core/src/tolerance.rs")),
+    ("tolerance", include_str!("../../core/src/tolerance/mod.rs")),
 ];
 
 /// The names of every `pub use` item of `lib`: `pub use a::{B, c};` and
