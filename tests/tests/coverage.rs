@@ -555,7 +555,7 @@ const ENGINE_RS: &str = include_str!("../../core/tests/engine.rs");
 
 /// The core modules whose unit tests cover exported items.
 const CORE_MODULES: &[(&str, &str)] = &[
-    ("synthesis", include_str!("../../core/src/synthesis.rs")),
+    ("synthesis", include_str!("../../core/src/synthesis/mod.rs")),
     ("tolerance", include_str!("../../core/src/tolerance/mod.rs")),
 ];
 
