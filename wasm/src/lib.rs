@@ -27,7 +27,6 @@ mod js;
 mod plot;
 #[cfg(feature = "extras")]
 mod spec;
-mod ticks;
 #[cfg(feature = "extras")]
 mod tolerance;
 mod values;

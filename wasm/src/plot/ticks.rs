@@ -1,100 +1,20 @@
 //! Axis ticks: where they go and how they read.
 //!
-//! Tick labels use engineering notation with SI prefixes and at most three
-//! significant digits (`10 Hz`, `1 kHz`, `2.5 mA`, `100 MHz`), never
-//! `100000.0`.
+//! Tick labels are the core's engineering notation (`stagewright::format_si`:
+//! SI prefixes, three significant digits: `10 Hz`, `1 kHz`, `2.5 mA`,
+//! `100 MHz`), never `100000.0`.
 
-/// SI prefixes from 10⁻¹⁵ to 10¹², in steps of 10³.
-const PREFIXES: [(i32, &str); 10] = [
-    (-15, "f"),
-    (-12, "p"),
-    (-9, "n"),
-    (-6, "µ"),
-    (-3, "m"),
-    (0, ""),
-    (3, "k"),
-    (6, "M"),
-    (9, "G"),
-    (12, "T"),
-];
-
-/// A short tick label: `value` with an SI prefix and `unit`, three
-/// significant digits at most, trailing zeros dropped.
-///
-/// An empty `unit` still gets a prefix (`10k`); the unit `"dB"` and `"°"`
-/// never do (`-20 dB`, `-90°`).
+/// A short tick label: `value` in `unit` as the core writes every value
+/// (`stagewright::format_si`: three significant digits, SI prefixes, `10 Hz`,
+/// `1 kHz`, `2.5 mA`), with a typographic minus sign. A non-finite value
+/// gives no label; one within 10⁻¹⁸ of zero (rounding noise of the tick
+/// arithmetic) reads 0.
 pub(crate) fn eng_label(value: f64, unit: &str) -> String {
     if !value.is_finite() {
         return String::new();
     }
-    let no_prefix = matches!(unit, "dB" | "°" | "%" | "°C");
-    let sep = if unit.is_empty() || unit == "°" || unit == "%" {
-        ""
-    } else {
-        " "
-    };
-    // Values this close to zero are rounding noise from tick arithmetic.
-    if value.abs() < 1e-18 {
-        return format!("0{sep}{unit}");
-    }
-    let (mant, prefix) = if no_prefix {
-        (value, "")
-    } else {
-        split_prefix(value)
-    };
-    format!("{}{sep}{prefix}{unit}", short_number(mant))
-}
-
-/// Splits `value` into a mantissa in [1, 1000) and its SI prefix.
-fn split_prefix(value: f64) -> (f64, &'static str) {
-    let exp3 = ((libm::log10(value.abs()) / 3.0).floor() as i32 * 3).clamp(-15, 12);
-    let mut mant = value / 10f64.powi(exp3);
-    let mut exp = exp3;
-    // Rounding to three digits can carry into the next prefix (999.7 → 1000).
-    if round_sig(mant.abs(), 3) >= 1000.0 && exp < 12 {
-        exp += 3;
-        mant /= 1000.0;
-    }
-    let prefix = PREFIXES
-        .iter()
-        .find(|(e, _)| *e == exp)
-        .map_or("", |(_, p)| p);
-    (mant, prefix)
-}
-
-/// Rounds `x` to `digits` significant digits.
-fn round_sig(x: f64, digits: i32) -> f64 {
-    if x == 0.0 || !x.is_finite() {
-        return x;
-    }
-    let mag = libm::log10(x.abs()).floor() as i32;
-    let scale = 10f64.powi(digits - 1 - mag);
-    (x * scale).round() / scale
-}
-
-/// `x` with at most three significant digits (at least the integer part),
-/// trailing zeros and a trailing point removed, and a real minus sign.
-fn short_number(x: f64) -> String {
-    let r = round_sig(x, 3);
-    let mag = if r == 0.0 {
-        0
-    } else {
-        libm::log10(r.abs()).floor() as i32
-    };
-    let decimals = (2 - mag).clamp(0, 6) as usize;
-    let mut s = format!("{r:.decimals$}");
-    if s.contains('.') {
-        while s.ends_with('0') {
-            s.pop();
-        }
-        if s.ends_with('.') {
-            s.pop();
-        }
-    }
-    if s == "-0" {
-        s = "0".into();
-    }
-    s.replace('-', "\u{2212}")
+    let value = if value.abs() < 1e-18 { 0.0 } else { value };
+    stagewright::format_si(value, unit).replace('-', "\u{2212}")
 }
 
 /// Tick positions on a logarithmic axis from `lo` to `hi` (both > 0).
