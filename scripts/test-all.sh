@@ -11,6 +11,16 @@ step "toolchain targets"
 rustup target add thumbv6m-none-eabi wasm32-unknown-unknown >/dev/null 2>&1 || rustup target add thumbv6m-none-eabi wasm32-unknown-unknown
 rustup component add rustfmt clippy >/dev/null 2>&1 || true
 
+step "test tools"
+# xmllint (Debian's libxml2-utils) validates the JUnit report of
+# `stagewright check --junit` against cli/tests/junit.xsd.
+if ! command -v xmllint >/dev/null 2>&1; then
+  SUDO=""
+  if [ "$(id -u)" -ne 0 ]; then SUDO="sudo"; fi
+  $SUDO env DEBIAN_FRONTEND=noninteractive apt-get install -y -q libxml2-utils >/dev/null 2>&1 ||
+    { $SUDO apt-get update -q >/dev/null && $SUDO env DEBIAN_FRONTEND=noninteractive apt-get install -y -q libxml2-utils; }
+fi
+
 step "cargo fmt --check"
 cargo fmt --all --check
 

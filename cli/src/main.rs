@@ -8,6 +8,7 @@
 // The commands beyond the first ones live in `stagewright/` beside this
 // file (not directly in `src/bin/`, where cargo would take them for binaries).
 mod design;
+mod junit;
 mod tolerance;
 
 use std::io::{self, Read, Write};
@@ -136,6 +137,10 @@ enum Command {
         /// Print the result as one JSON document (stagewright-check/1).
         #[arg(long)]
         json: bool,
+        /// Also write the result as a JUnit XML report to FILE (one test
+        /// case per check), for a CI server's test report.
+        #[arg(long, value_name = "FILE")]
+        junit: Option<String>,
         #[command(flatten)]
         tolerance: tolerance::ToleranceArgs,
     },
@@ -195,9 +200,10 @@ fn main() -> ExitCode {
         Command::Check {
             files,
             json,
+            junit,
             tolerance,
         } => match tolerance.plan() {
-            Ok(plan) => check(&files, json, plan.as_ref()),
+            Ok(plan) => check(&files, json, junit.as_deref(), plan.as_ref()),
             Err(message) => {
                 eprintln!("error: {message}");
                 INVALID
@@ -322,7 +328,7 @@ impl Checked {
     }
 }
 
-fn check(files: &[String], json: bool, plan: Option<&tolerance::Plan>) -> u8 {
+fn check(files: &[String], json: bool, junit: Option<&str>, plan: Option<&tolerance::Plan>) -> u8 {
     let results: Vec<(&str, Result<Checked, Problem>)> = files
         .iter()
         .map(|f| {
@@ -351,6 +357,37 @@ fn check(files: &[String], json: bool, plan: Option<&tolerance::Plan>) -> u8 {
     } else {
         PASS
     };
+    if let Some(path) = junit {
+        let suites: Vec<(String, junit::Suite)> = results
+            .iter()
+            .map(|(f, r)| {
+                let suite = match r {
+                    Ok(c) => {
+                        let mut cases: Vec<junit::Case> = c
+                            .report
+                            .checks()
+                            .iter()
+                            .map(|k| junit::Case {
+                                id: k.id.clone(),
+                                pass: k.pass,
+                                message: k.message.clone(),
+                            })
+                            .collect();
+                        if let Some(t) = &c.tolerance {
+                            cases.extend(t.cases());
+                        }
+                        junit::Suite::Checked(cases)
+                    }
+                    Err(p) => junit::Suite::Invalid(p.message()),
+                };
+                (shown_name(f).to_string(), suite)
+            })
+            .collect();
+        if let Err(e) = std::fs::write(path, junit::report(&suites)) {
+            eprintln!("error: --junit {path}: cannot write the report: {e}");
+            return INVALID;
+        }
+    }
     if json {
         let entries: Vec<serde_json::Value> = results
             .iter()

@@ -393,6 +393,39 @@ impl Outcome {
         out
     }
 
+    /// Every check of the tolerance analysis as a JUnit test case: each
+    /// requirement at its worst vertex (`worst_case.<id>`), and the yield
+    /// (`monte_carlo.yield`).
+    pub(crate) fn cases(&self) -> Vec<crate::junit::Case> {
+        let mut out = Vec::new();
+        if let Some((_, checks)) = &self.worst {
+            for w in checks {
+                let at = w
+                    .corner
+                    .as_ref()
+                    .map_or(String::new(), |c| format!(" at {}", corner_text(c)));
+                out.push(crate::junit::Case {
+                    id: format!("worst_case.{}", w.check.id),
+                    pass: w.check.pass,
+                    message: format!("{}{at}", w.check.message),
+                });
+            }
+        }
+        if let Some(m) = &self.monte_carlo {
+            out.push(crate::junit::Case {
+                id: "monte_carlo.yield".to_string(),
+                pass: self.yield_passed(),
+                message: format!(
+                    "Monte Carlo yield {} of {} trials, at least {} required",
+                    percent(m.yield_fraction),
+                    m.completed,
+                    percent(self.min_yield)
+                ),
+            });
+        }
+        out
+    }
+
     /// The summary for the file's status line.
     pub(crate) fn status(&self) -> String {
         let mut parts = Vec::new();

@@ -18,6 +18,8 @@
 //!   --worst-case` and `--monte-carlo`: exit codes, JSON shapes, seeds.
 //! - `readme_shows_*`, `readme_documents_*`: the README quotes the real
 //!   `design` output and documents every key of the new JSON documents.
+//! - `junit_report_validates_and_counts_every_check`: `check --junit FILE`
+//!   against `cli/tests/junit.xsd` (with xmllint), counted as `--json` counts.
 //! - `golden_documents_are_unchanged`: the documents of `analyze`, `check
 //!   --worst-case --monte-carlo`, `design` and `sweep` on the examples,
 //!   byte for byte as kept in `tests/golden/`.
@@ -1254,4 +1256,94 @@ fn golden_documents_are_unchanged() {
             "{name}: the output differs from tests/golden/{name} (run with STAGEWRIGHT_BLESS=1 after a change on purpose)"
         );
     }
+}
+
+/// `xmllint` validates `xml` against `cli/tests/junit.xsd`; returns its
+/// verdict and message. scripts/test-all.sh installs xmllint (Debian's
+/// libxml2-utils) before the tests run.
+fn junit_valid(xml: &str, name: &str) -> (bool, String) {
+    let dir = std::env::temp_dir().join(format!("stagewright-junit-{}", std::process::id()));
+    std::fs::create_dir_all(&dir).expect("a temporary folder");
+    let file = dir.join(name);
+    std::fs::write(&file, xml).expect("the report can be written");
+    let schema = root().join("cli").join("tests").join("junit.xsd");
+    let o = Command::new("xmllint")
+        .arg("--noout")
+        .arg("--schema")
+        .arg(&schema)
+        .arg(&file)
+        .output()
+        .expect("xmllint runs (apt-get install libxml2-utils; scripts/test-all.sh installs it)");
+    (
+        o.status.success(),
+        String::from_utf8_lossy(&o.stderr).into_owned(),
+    )
+}
+
+#[test]
+fn junit_report_validates_and_counts_every_check() {
+    // `check --junit FILE` beside --json: one test case per check, the
+    // failures and the invalid file counted as the JSON document counts
+    // them, and the report valid against the usual JUnit schema
+    // (cli/tests/junit.xsd). A report missing a test case's class name is
+    // refused by the same schema, so the validation can fail.
+    let dir = std::env::temp_dir().join(format!("stagewright-junit-run-{}", std::process::id()));
+    std::fs::create_dir_all(&dir).expect("a temporary folder");
+    let failing = dir.join("failing.json");
+    std::fs::write(&failing, failing_design()).expect("writable");
+    let report = dir.join("report.xml");
+    let files = [
+        "examples/transducer-gain-stage.json".to_string(),
+        failing.to_string_lossy().into_owned(),
+        "examples/broken/typo-key.json".to_string(),
+    ];
+    let mut args = vec![
+        "check",
+        "--worst-case",
+        "--monte-carlo",
+        "100",
+        "--json",
+        "--junit",
+    ];
+    let report_arg = report.to_string_lossy().into_owned();
+    args.push(&report_arg);
+    args.extend(files.iter().map(String::as_str));
+    let o = run(&args, "");
+    assert_eq!(
+        o.status.code(),
+        Some(2),
+        "an invalid file among them: {}",
+        stderr(&o)
+    );
+    let doc: Value = serde_json::from_str(&stdout(&o)).expect("the JSON document");
+    let xml = std::fs::read_to_string(&report).expect("the JUnit report is written");
+    let (ok, why) = junit_valid(&xml, "report.xml");
+    assert!(ok, "the report validates: {why}\n{xml}");
+    // Counts: test cases = the nominal checks of each file plus its worst
+    // case checks and the yield; failures = the failing list of each file.
+    let mut tests = 0;
+    let mut failures = 0;
+    for entry in doc["files"].as_array().expect("files") {
+        if entry["status"] == "invalid" {
+            continue;
+        }
+        tests += entry["checks"].as_u64().unwrap()
+            + entry["worst_case"]["checks"]
+                .as_array()
+                .map_or(0, |c| c.len() as u64)
+            + 1;
+        failures += entry["failing"].as_array().unwrap().len() as u64;
+    }
+    assert!(failures > 0, "the failing design fails something");
+    let head = format!(
+        "<testsuites name=\"stagewright check\" tests=\"{}\" failures=\"{failures}\" errors=\"1\">",
+        tests + 1
+    );
+    assert!(xml.contains(&head), "{head} in\n{xml}");
+    assert_eq!(xml.matches("<testsuite ").count(), 3);
+    assert!(xml.contains("unknown key &quot;requirements.min_swng&quot;"));
+    // The negative control: the schema refuses a test case with no class name.
+    let broken = xml.replacen(" classname=\"examples/transducer-gain-stage.json\"", "", 1);
+    let (ok, _) = junit_valid(&broken, "broken.xml");
+    assert!(!ok, "a test case without a class name is refused");
 }
