@@ -9,11 +9,10 @@
 //! core's [`worst_checks`], as on the page), and prints.
 
 use clap::Args;
-use serde_json::{json, Map, Value};
+use serde_json::{Map, Value};
 use stagewright::{
     db20, format_si, parse_value_field, sensitivity, worst_case, worst_checks, Corner, Design,
-    Error, ErrorKind, Level, MonteCarlo, MonteCarloSummary, Quantity, Sensitivity, Temperature,
-    Tolerances, WorstCase, WorstCheck,
+    Error, ErrorKind, Level, MonteCarlo, Quantity, Temperature, ToleranceDocument, Tolerances,
 };
 
 /// Sensitivity entries shown in the readable output (all are in `--json`).
@@ -197,15 +196,8 @@ impl ToleranceArgs {
     }
 }
 
-/// The tolerance analysis of one file.
-pub(crate) struct Outcome {
-    tolerances: Tolerances,
-    hfe: (f64, f64),
-    worst: Option<(WorstCase, Vec<WorstCheck>)>,
-    sensitivity: Vec<Sensitivity>,
-    monte_carlo: Option<MonteCarloSummary>,
-    min_yield: f64,
-}
+/// The tolerance analysis of one file: the core's document of it.
+pub(crate) struct Outcome(ToleranceDocument);
 
 /// The tolerances for `design`: its block (or the defaults) with the
 /// command-line values in place. An error names the option when the value
@@ -289,14 +281,13 @@ pub(crate) fn analyse(design: &Design, plan: &Plan) -> Result<Outcome, Error> {
         }
         None => (sensitivity(stage)?, None),
     };
-    Ok(Outcome {
+    Ok(Outcome(ToleranceDocument {
         tolerances: t,
         hfe: (stage.transistor.hfe_min, stage.transistor.hfe_max),
-        worst,
+        worst_case: worst,
         sensitivity,
-        monte_carlo,
-        min_yield: plan.min_yield,
-    })
+        monte_carlo: monte_carlo.map(|m| (m, plan.min_yield)),
+    }))
 }
 
 /// A yield as a percentage that never rounds a failing run up to 100 %.
@@ -326,28 +317,18 @@ fn corner_text(c: &Corner) -> String {
     }
 }
 
-/// A corner as `{"r1": "max", "r2": "min", ...}`.
-fn corner_json(c: &Corner) -> Value {
-    let mut m = Map::new();
-    for s in &c.settings {
-        m.insert(s.parameter.name().to_string(), json!(s.level.name()));
-    }
-    Value::Object(m)
-}
-
 impl Outcome {
     fn worst_passed(&self) -> bool {
-        self.worst
-            .as_ref()
-            .is_none_or(|(_, c)| c.iter().all(|w| w.check.pass))
+        self.0.worst_case_passed()
     }
 
     fn yield_passed(&self) -> bool {
-        self.monte_carlo
-            .as_ref()
-            // The fraction is passed/completed: compare with a margin of a
-            // part in 10¹² so that 99.5 % of 1000 trials is 99.5 %.
-            .is_none_or(|m| m.yield_fraction + 1e-12 >= self.min_yield)
+        self.0.yield_passed()
+    }
+
+    /// The least yield accepted (1 when there is no Monte Carlo run).
+    fn min_yield(&self) -> f64 {
+        self.0.monte_carlo.as_ref().map_or(1.0, |(_, least)| *least)
     }
 
     /// True when every requirement holds at every vertex and the yield is
@@ -359,7 +340,7 @@ impl Outcome {
     /// What fails, as `check --json` lists it: (id, value, limit, unit, message).
     pub(crate) fn failing(&self) -> Vec<(String, f64, f64, &'static str, String)> {
         let mut out = Vec::new();
-        if let Some((_, checks)) = &self.worst {
+        if let Some((_, checks)) = &self.0.worst_case {
             for w in checks.iter().filter(|w| !w.check.pass) {
                 let at = w
                     .corner
@@ -374,18 +355,18 @@ impl Outcome {
                 ));
             }
         }
-        if let Some(m) = &self.monte_carlo {
+        if let Some((m, _)) = &self.0.monte_carlo {
             if !self.yield_passed() {
                 out.push((
                     "monte_carlo.yield".to_string(),
                     100.0 * m.yield_fraction,
-                    100.0 * self.min_yield,
+                    100.0 * self.min_yield(),
                     "%",
                     format!(
                         "Monte Carlo yield {} of {} trials is below the required {}",
                         percent(m.yield_fraction),
                         m.completed,
-                        percent(self.min_yield)
+                        percent(self.min_yield())
                     ),
                 ));
             }
@@ -398,7 +379,7 @@ impl Outcome {
     /// (`monte_carlo.yield`).
     pub(crate) fn cases(&self) -> Vec<crate::junit::Case> {
         let mut out = Vec::new();
-        if let Some((_, checks)) = &self.worst {
+        if let Some((_, checks)) = &self.0.worst_case {
             for w in checks {
                 let at = w
                     .corner
@@ -411,7 +392,7 @@ impl Outcome {
                 });
             }
         }
-        if let Some(m) = &self.monte_carlo {
+        if let Some((m, _)) = &self.0.monte_carlo {
             out.push(crate::junit::Case {
                 id: "monte_carlo.yield".to_string(),
                 pass: self.yield_passed(),
@@ -419,7 +400,7 @@ impl Outcome {
                     "Monte Carlo yield {} of {} trials, at least {} required",
                     percent(m.yield_fraction),
                     m.completed,
-                    percent(self.min_yield)
+                    percent(self.min_yield())
                 ),
             });
         }
@@ -429,7 +410,7 @@ impl Outcome {
     /// The summary for the file's status line.
     pub(crate) fn status(&self) -> String {
         let mut parts = Vec::new();
-        if let Some((w, checks)) = &self.worst {
+        if let Some((w, checks)) = &self.0.worst_case {
             let failed = checks.iter().filter(|c| !c.check.pass).count();
             parts.push(if failed == 0 {
                 format!("worst case holds at {} vertices", w.vertices)
@@ -437,7 +418,7 @@ impl Outcome {
                 format!("worst case: {failed} of {} requirements fail", checks.len())
             });
         }
-        if let Some(m) = &self.monte_carlo {
+        if let Some((m, _)) = &self.0.monte_carlo {
             parts.push(format!(
                 "yield {} of {} trials",
                 percent(m.yield_fraction),
@@ -447,103 +428,18 @@ impl Outcome {
         parts.join(", ")
     }
 
-    /// The keys this analysis adds to the file's entry of `check --json`.
+    /// The keys this analysis adds to the file's entry of `check --json`:
+    /// the core's tolerance document without its format.
     pub(crate) fn json_entries(&self) -> Map<String, Value> {
-        let t = &self.tolerances;
-        let mut m = Map::new();
-        m.insert(
-            "tolerances".into(),
-            json!({
-                "resistor_tolerance": t.resistor_tolerance,
-                "capacitor_tolerance": t.capacitor_tolerance,
-                "supply_tolerance": t.supply_tolerance,
-                "vbe_spread": t.vbe_spread,
-                "ambient_min": t.ambient_min.celsius(),
-                "ambient_max": t.ambient_max.celsius(),
-                "hfe_min": self.hfe.0,
-                "hfe_max": self.hfe.1,
-            }),
-        );
-        match &self.worst {
-            Some((w, checks)) => {
-                let mut corners = Map::new();
-                for e in &w.extremes {
-                    corners.insert(
-                        e.quantity.name().to_string(),
-                        json!({
-                            "nominal": e.nominal,
-                            "min": e.min,
-                            "max": e.max,
-                            "unit": e.quantity.unit(),
-                            "corner": { "min": corner_json(&e.min_corner), "max": corner_json(&e.max_corner) },
-                        }),
-                    );
-                }
-                m.insert("corners".into(), Value::Object(corners));
-                m.insert(
-                    "worst_case".into(),
-                    json!({
-                        "pass": self.worst_passed(),
-                        "vertices": w.vertices,
-                        "inactive_vertices": w.inactive_vertices,
-                        "checks": checks.iter().map(|c| json!({
-                            "id": c.check.id,
-                            "pass": c.check.pass,
-                            "value": c.check.value,
-                            "limit": c.check.limit,
-                            "unit": c.check.unit,
-                            "message": c.check.message,
-                            "corner": c.corner.as_ref().map(corner_json),
-                        })).collect::<Vec<_>>(),
-                    }),
-                );
-            }
-            None => {
-                m.insert("corners".into(), Value::Null);
-                m.insert("worst_case".into(), Value::Null);
-            }
+        match serde_json::to_value(self.0.entries()) {
+            Ok(Value::Object(m)) => m,
+            _ => Map::new(),
         }
-        m.insert(
-            "sensitivity".into(),
-            serde_json::to_value(&self.sensitivity).unwrap_or(Value::Null),
-        );
-        m.insert(
-            "monte_carlo".into(),
-            match &self.monte_carlo {
-                Some(s) => {
-                    let mut percentiles = Map::new();
-                    for d in &s.distributions {
-                        percentiles.insert(
-                            d.quantity.name().to_string(),
-                            json!({ "p1": d.p1, "p50": d.p50, "p99": d.p99, "unit": d.quantity.unit() }),
-                        );
-                    }
-                    let mut requirements = Map::new();
-                    for r in &s.requirements {
-                        requirements.insert(r.requirement.to_string(), json!(r.yield_fraction));
-                    }
-                    json!({
-                        "trials": s.trials,
-                        "completed": s.completed,
-                        "seed": s.seed,
-                        "yield": s.yield_fraction,
-                        "min_yield": self.min_yield,
-                        "pass": self.yield_passed(),
-                        "no_solution": s.no_solution,
-                        "not_active": s.not_active,
-                        "requirements": requirements,
-                        "percentiles": percentiles,
-                    })
-                }
-                None => Value::Null,
-            },
-        );
-        m
     }
 
     /// The readable tolerance analysis of one file.
     pub(crate) fn to_text(&self, name: &str) -> String {
-        let t = &self.tolerances;
+        let t = &self.0.tolerances;
         let mut o = format!("\n{name}: tolerance analysis\n");
         o.push_str(&format!(
             "  resistors ±{}, capacitors ±{}, supply ±{}, VBE ±{}, ambient {} to {}, hFE {} to {}\n",
@@ -553,8 +449,8 @@ impl Outcome {
             format_si(t.vbe_spread, "V"),
             format_si(t.ambient_min.celsius(), "°C"),
             format_si(t.ambient_max.celsius(), "°C"),
-            format_si(self.hfe.0, ""),
-            format_si(self.hfe.1, ""),
+            format_si(self.0.hfe.0, ""),
+            format_si(self.0.hfe.1, ""),
         ));
         let row = |o: &mut String, cells: [&str; 4]| {
             o.push_str(&format!(
@@ -562,7 +458,7 @@ impl Outcome {
                 cells[0], cells[1], cells[2], cells[3]
             ));
         };
-        if let Some((w, checks)) = &self.worst {
+        if let Some((w, checks)) = &self.0.worst_case {
             let active = if w.inactive_vertices == 0 {
                 "the transistor active at every one".to_string()
             } else {
@@ -619,16 +515,16 @@ impl Outcome {
                 }
             }
         }
-        let shown = self.sensitivity.len().min(SENSITIVITY_SHOWN);
+        let shown = self.0.sensitivity.len().min(SENSITIVITY_SHOWN);
         o.push_str(&format!(
             "\n  Sensitivity (% change of the result per % change of the parameter, largest first; {shown} of {})\n",
-            self.sensitivity.len()
+            self.0.sensitivity.len()
         ));
         o.push_str(&format!(
             "    {:<22}{:<14}{:>8}\n",
             "result", "parameter", "%/%"
         ));
-        for s in self.sensitivity.iter().take(SENSITIVITY_SHOWN) {
+        for s in self.0.sensitivity.iter().take(SENSITIVITY_SHOWN) {
             o.push_str(&format!(
                 "    {:<22}{:<14}{:>+8.3}\n",
                 s.quantity.name(),
@@ -636,13 +532,13 @@ impl Outcome {
                 s.percent_per_percent
             ));
         }
-        if let Some(m) = &self.monte_carlo {
+        if let Some((m, _)) = &self.0.monte_carlo {
             o.push_str(&format!(
                 "\n  Monte Carlo ({} trials, seed {}): yield {}, at least {} required: {}\n",
                 m.completed,
                 m.seed,
                 percent(m.yield_fraction),
-                percent(self.min_yield),
+                percent(self.min_yield()),
                 if self.yield_passed() { "pass" } else { "FAIL" }
             ));
             if m.no_solution > 0 || m.not_active > 0 {

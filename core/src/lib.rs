@@ -140,7 +140,8 @@ pub use ratings::{
 };
 #[cfg(feature = "serde")]
 pub use report::{
-    DesignResult, PartEntry, Report, SweepRow, SweepTable, REPORT_FORMAT, SWEEP_FORMAT,
+    DesignResult, Entries, PartEntry, Report, SweepRow, SweepTable, ToleranceDocument,
+    REPORT_FORMAT, SWEEP_FORMAT, TOLERANCE_FORMAT,
 };
 pub use requirements::{Bound, Requirement, Requirements, REQUIREMENTS};
 pub use response::{log_frequencies, Bandwidth, Edge, Response, SEARCH_FROM, SEARCH_TO};

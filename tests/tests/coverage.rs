@@ -521,6 +521,9 @@ const COVERAGE: &[(&str, Covered)] = &[
     ("Report", Format(REPORT)),
     ("SweepRow", Format(REPORT)),
     ("SweepTable", Format(REPORT)),
+    ("ToleranceDocument", Format(REPORT)),
+    ("Entries", Format(REPORT)),
+    ("TOLERANCE_FORMAT", Format(REPORT)),
     ("REPORT_FORMAT", Format(REPORT)),
     ("SWEEP_FORMAT", Format(REPORT)),
     // specification file (feature "serde")

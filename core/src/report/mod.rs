@@ -103,9 +103,11 @@ use serde::{Serialize, Serializer};
 mod design_result;
 mod sweep;
 mod text;
+mod tolerance;
 
 pub use design_result::{DesignResult, PartEntry};
 pub use sweep::{SweepRow, SweepTable, SWEEP_FORMAT};
+pub use tolerance::{Entries, ToleranceDocument, TOLERANCE_FORMAT};
 
 use crate::analysis::Analysis;
 use crate::decibel::db20;
