@@ -15,33 +15,10 @@
 use std::hint::black_box;
 
 use criterion::{criterion_group, criterion_main, Criterion};
-use stagewright::{analyze, preset, Parts, Stage, StageKind, Temperature};
-
-/// The stage of the crate documentation's example.
-fn example_stage() -> Stage {
-    Stage {
-        kind: StageKind::CommonEmitter,
-        supply: 12.0,
-        ambient: Temperature::from_celsius(25.0),
-        parts: Parts {
-            r1: Some(47e3),
-            r2: Some(10e3),
-            rc: 4.7e3,
-            re: 220.0,
-            re_bypassed: 820.0,
-            rs: 600.0,
-            rl: 10e3,
-            c_in: Some(1e-6),
-            c_out: Some(1e-6),
-            c_emitter: Some(47e-6),
-            ..Parts::default()
-        },
-        transistor: preset("general-purpose-npn").expect("the preset exists"),
-    }
-}
+use stagewright::{analyze, Stage};
 
 fn benches(c: &mut Criterion) {
-    let stage = example_stage();
+    let stage = Stage::example();
     c.bench_function("analyze_and_sweep", |b| {
         b.iter(|| {
             let a = analyze(black_box(&stage)).expect("the example stage analyses");

@@ -21,32 +21,9 @@ use std::time::Duration;
 
 use criterion::{criterion_group, criterion_main, Criterion};
 use stagewright::{
-    preset, sensitivity, synthesize, worst_case, MonteCarlo, Parts, Requirements, Spec, Stage,
-    StageKind, Temperature, Tolerances,
+    preset, sensitivity, synthesize, worst_case, MonteCarlo, Requirements, Spec, Stage, StageKind,
+    Tolerances,
 };
-
-/// The stage of the crate documentation's example.
-fn example_stage() -> Stage {
-    Stage {
-        kind: StageKind::CommonEmitter,
-        supply: 12.0,
-        ambient: Temperature::from_celsius(25.0),
-        parts: Parts {
-            r1: Some(47e3),
-            r2: Some(10e3),
-            rc: 4.7e3,
-            re: 220.0,
-            re_bypassed: 820.0,
-            rs: 600.0,
-            rl: 10e3,
-            c_in: Some(1e-6),
-            c_out: Some(1e-6),
-            c_emitter: Some(47e-6),
-            ..Parts::default()
-        },
-        transistor: preset("general-purpose-npn").expect("the preset exists"),
-    }
-}
 
 fn requirements() -> Requirements {
     Requirements {
@@ -58,7 +35,7 @@ fn requirements() -> Requirements {
 }
 
 fn monte_carlo(c: &mut Criterion) {
-    let stage = example_stage();
+    let stage = Stage::example();
     let tol = Tolerances::default();
     let req = requirements();
     let mut mc = MonteCarlo::new(&stage, &tol, &req, 10_000, 1).expect("the stage analyses");

@@ -3,28 +3,11 @@
 //! The stage is an invented scenario: a 12 V gain stage for a small
 //! transducer, driving a 10 kΩ input.
 
-use stagewright::{analyze, format_si, preset, Parts, Stage, StageKind, Temperature};
+use stagewright::{analyze, format_si, Stage};
 
 fn main() -> Result<(), stagewright::Error> {
-    let stage = Stage {
-        kind: StageKind::CommonEmitter,
-        supply: 12.0,
-        ambient: Temperature::from_celsius(25.0),
-        parts: Parts {
-            r1: Some(47e3),
-            r2: Some(10e3),
-            rc: 4.7e3,
-            re: 220.0,
-            re_bypassed: 820.0,
-            rs: 600.0,
-            rl: 10e3,
-            c_in: Some(1e-6),
-            c_out: Some(1e-6),
-            c_emitter: Some(47e-6),
-            ..Parts::default()
-        },
-        transistor: preset("general-purpose-npn")?,
-    };
+    // The crate documentation's example stage (its parts: Parts::example()).
+    let stage = Stage::example();
     let a = analyze(&stage)?;
     let op = &a.operating_point;
     println!("common-emitter gain stage, 12 V, general-purpose small-signal NPN");

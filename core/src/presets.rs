@@ -53,27 +53,7 @@ pub fn preset(name: &str) -> Result<TransistorData> {
     let celsius = Temperature::from_celsius;
     let d = match name.trim() {
         // A small-signal device in a leaded plastic package, middle gain group.
-        "general-purpose-npn" => TransistorData {
-            polarity: Polarity::Npn,
-            hfe: 200.0,                 // middle gain group (class typical, from memory)
-            hfe_min: 110.0,             // gain-group lower limit (class typical, from memory)
-            hfe_max: 400.0,             // gain-group upper limit (class typical, from memory)
-            vbe: 0.65,                  // at 2 mA, 25 °C (class typical, from memory)
-            vbe_at_ic: 2e-3,            //
-            early_voltage: Some(100.0), // (class typical, from memory)
-            ft: 250e6,                  // (class typical, from memory)
-            cob: 4e-12,                 // at VCB = 10 V (class typical, from memory)
-            cob_vcb: Some(10.0),        //
-            rbb: 100.0,                 // (class typical, from memory)
-            vce_sat: 0.2,               // at 10:1 forced gain (class typical, from memory)
-            vceo_max: 40.0,             // (class typical, from memory)
-            ic_max: 0.2,                // (class typical, from memory)
-            ptot_max: 0.625,            // free air, 25 °C (class typical, from memory)
-            rth_ja: 200.0,              // (class typical, from memory)
-            tj_max: celsius(150.0),     // (class typical, from memory)
-            xtb: DEFAULT_XTB,
-            beta_reverse: DEFAULT_BETA_REVERSE,
-        },
+        "general-purpose-npn" => general_purpose_npn(),
         // The complement of the device above.
         "general-purpose-pnp" => TransistorData {
             polarity: Polarity::Pnp,
@@ -165,4 +145,32 @@ pub fn preset(name: &str) -> Result<TransistorData> {
         other => return Err(unknown_preset(other, ALLOWED)),
     };
     Ok(d)
+}
+
+/// The `general-purpose-npn` preset (a small-signal device in a leaded
+/// plastic package, middle gain group); also the device of
+/// [`crate::Stage::example`].
+pub(crate) fn general_purpose_npn() -> TransistorData {
+    let celsius = Temperature::from_celsius;
+    TransistorData {
+        polarity: Polarity::Npn,
+        hfe: 200.0,                 // middle gain group (class typical, from memory)
+        hfe_min: 110.0,             // gain-group lower limit (class typical, from memory)
+        hfe_max: 400.0,             // gain-group upper limit (class typical, from memory)
+        vbe: 0.65,                  // at 2 mA, 25 °C (class typical, from memory)
+        vbe_at_ic: 2e-3,            //
+        early_voltage: Some(100.0), // (class typical, from memory)
+        ft: 250e6,                  // (class typical, from memory)
+        cob: 4e-12,                 // at VCB = 10 V (class typical, from memory)
+        cob_vcb: Some(10.0),        //
+        rbb: 100.0,                 // (class typical, from memory)
+        vce_sat: 0.2,               // at 10:1 forced gain (class typical, from memory)
+        vceo_max: 40.0,             // (class typical, from memory)
+        ic_max: 0.2,                // (class typical, from memory)
+        ptot_max: 0.625,            // free air, 25 °C (class typical, from memory)
+        rth_ja: 200.0,              // (class typical, from memory)
+        tj_max: celsius(150.0),     // (class typical, from memory)
+        xtb: DEFAULT_XTB,
+        beta_reverse: DEFAULT_BETA_REVERSE,
+    }
 }

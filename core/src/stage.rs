@@ -193,7 +193,42 @@ fn capacitor(field: &str, value: Option<f64>) -> Result<()> {
     Ok(())
 }
 
+impl Parts {
+    /// The parts of the crate documentation's example, a 12 V
+    /// common-emitter gain stage: 47 kΩ / 10 kΩ divider, 4.7 kΩ collector
+    /// resistor, 220 Ω unbypassed and 820 Ω bypassed emitter resistance,
+    /// a 600 Ω source, a 10 kΩ load, 1 µF couplings and a 47 µF bypass.
+    pub fn example() -> Parts {
+        Parts {
+            r1: Some(47e3),
+            r2: Some(10e3),
+            rc: 4.7e3,
+            re: 220.0,
+            re_bypassed: 820.0,
+            rs: 600.0,
+            rl: 10e3,
+            c_in: Some(1e-6),
+            c_out: Some(1e-6),
+            c_emitter: Some(47e-6),
+            ..Parts::default()
+        }
+    }
+}
+
 impl Stage {
+    /// The crate documentation's example stage, for examples, benchmarks
+    /// and tests: [`Parts::example`] on a 12 V supply at 25 °C with the
+    /// `general-purpose-npn` preset.
+    pub fn example() -> Stage {
+        Stage {
+            kind: StageKind::CommonEmitter,
+            supply: 12.0,
+            ambient: Temperature::from_celsius(25.0),
+            parts: Parts::example(),
+            transistor: crate::presets::general_purpose_npn(),
+        }
+    }
+
     /// Checks every value and every combination; the error names the
     /// field as the design file spells it.
     pub fn validate(&self) -> Result<()> {

@@ -29,8 +29,8 @@
 
 use stagewright::{
     analyze, analyze_with, preset, AcNetwork, Band, Design, Edge, Error, ErrorKind, Midband,
-    MonteCarlo, Options, Parts, Polarity, Region, Requirements, Stage, StageKind, Temperature,
-    Tolerances, DEFAULT_TRIALS, MAX_DEPTH, MAX_ECHO, MAX_NOTES, MAX_SUPPLY, MAX_TITLE, MAX_TRIALS,
+    MonteCarlo, Options, Polarity, Region, Requirements, Stage, StageKind, Temperature, Tolerances,
+    DEFAULT_TRIALS, MAX_DEPTH, MAX_ECHO, MAX_NOTES, MAX_SUPPLY, MAX_TITLE, MAX_TRIALS,
     MIN_RESISTANCE, OPEN_RESISTANCE, PRESETS, SEARCH_FROM, SEARCH_TO,
 };
 use stagewright::{utf8_text, Bound, Report, RequirementsDocument, FIGURES, REQUIREMENTS};
@@ -60,25 +60,7 @@ const SAME: f64 = 1e-12;
 
 /// The crate docs' example stage: a 12 V common-emitter gain stage.
 fn example() -> Stage {
-    Stage {
-        kind: StageKind::CommonEmitter,
-        supply: 12.0,
-        ambient: Temperature::from_celsius(25.0),
-        parts: Parts {
-            r1: Some(47e3),
-            r2: Some(10e3),
-            rc: 4.7e3,
-            re: 220.0,
-            re_bypassed: 820.0,
-            rs: 600.0,
-            rl: 10e3,
-            c_in: Some(1e-6),
-            c_out: Some(1e-6),
-            c_emitter: Some(47e-6),
-            ..Parts::default()
-        },
-        transistor: preset("general-purpose-npn").expect("preset"),
-    }
+    Stage::example()
 }
 
 /// The error `analyze` gives for `s`.

@@ -114,19 +114,7 @@ fn stage(kind: StageKind, device: &str, mut parts: Parts) -> Stage {
 /// Common emitter with the emitter resistance split into an unbypassed and a
 /// bypassed part, every capacitor finite (the crate docs' example stage).
 fn ce_parts() -> Parts {
-    Parts {
-        r1: Some(47e3),
-        r2: Some(10e3),
-        rc: 4.7e3,
-        re: 220.0,
-        re_bypassed: 820.0,
-        rs: 600.0,
-        rl: 10e3,
-        c_in: Some(1e-6),
-        c_out: Some(1e-6),
-        c_emitter: Some(47e-6),
-        ..Parts::default()
-    }
+    Parts::example()
 }
 
 /// Common collector with a collector resistor (so Cμ and ro see a

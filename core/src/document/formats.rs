@@ -24,44 +24,43 @@ pub const SPEC_FORMAT: &str = "stagewright-spec/1";
 /// Every specification format version this build reads.
 pub const SPEC_FORMATS: &[&str] = &[SPEC_FORMAT];
 
+/// The design file's `format`: one of [`DESIGN_FORMATS`]; a specification's
+/// format is pointed to the command that reads it.
 pub(crate) fn check_design_format(format: &str) -> Result<()> {
-    if DESIGN_FORMATS.contains(&format.trim()) {
-        Ok(())
-    } else {
-        let mut allowed = String::from(DESIGN_FORMAT);
-        if SPEC_FORMATS.contains(&format.trim()) {
-            allowed.push_str(
-                " (this is a specification: `stagewright design FILE` turns it into a design file)",
-            );
-        } else {
-            allowed.push_str(
-                " (the only version this build reads; a newer file needs a newer stagewright)",
-            );
-        }
-        Err(Error::new(
-            "format",
-            ErrorKind::Unsupported {
-                value: format.to_owned(),
-                allowed,
-            },
-        ))
-    }
+    check_format(
+        format,
+        DESIGN_FORMATS,
+        SPEC_FORMATS,
+        " (this is a specification: `stagewright design FILE` turns it into a design file)",
+    )
 }
 
+/// The specification's `format`: one of [`SPEC_FORMATS`]; a design file's
+/// format is pointed to the commands that read it.
 pub(crate) fn check_spec_format(format: &str) -> Result<()> {
-    if SPEC_FORMATS.contains(&format.trim()) {
+    check_format(
+        format,
+        SPEC_FORMATS,
+        DESIGN_FORMATS,
+        " (this is a design file: `stagewright analyze FILE` or `stagewright check FILE` reads it)",
+    )
+}
+
+/// `format` (trimmed) is one of `reads`; else an error that names the
+/// version this build writes (the first of `reads`) and either `other_hint`,
+/// for a format of the other kind (`other`), or the note that a newer file
+/// needs a newer build.
+fn check_format(format: &str, reads: &[&str], other: &[&str], other_hint: &str) -> Result<()> {
+    let f = format.trim();
+    if reads.contains(&f) {
         return Ok(());
     }
-    let mut allowed = String::from(SPEC_FORMAT);
-    if DESIGN_FORMATS.contains(&format.trim()) {
-        allowed.push_str(
-            " (this is a design file: `stagewright analyze FILE` or `stagewright check FILE` reads it)",
-        );
+    let mut allowed = String::from(reads.first().copied().unwrap_or_default());
+    allowed.push_str(if other.contains(&f) {
+        other_hint
     } else {
-        allowed.push_str(
-            " (the only version this build reads; a newer file needs a newer stagewright)",
-        );
-    }
+        " (the only version this build reads; a newer file needs a newer stagewright)"
+    });
     Err(Error::new(
         "format",
         ErrorKind::Unsupported {

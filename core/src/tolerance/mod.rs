@@ -221,25 +221,7 @@ mod tests {
     /// The crate documentation's common-emitter stage: 12 V, 47 k / 10 k,
     /// 4.7 k collector, 220 Ω + 820 Ω emitter, every capacitor finite.
     fn ce_stage() -> Stage {
-        Stage {
-            kind: StageKind::CommonEmitter,
-            supply: 12.0,
-            ambient: Temperature::from_celsius(25.0),
-            parts: Parts {
-                r1: Some(47e3),
-                r2: Some(10e3),
-                rc: 4.7e3,
-                re: 220.0,
-                re_bypassed: 820.0,
-                rs: 600.0,
-                rl: 10e3,
-                c_in: Some(1e-6),
-                c_out: Some(1e-6),
-                c_emitter: Some(47e-6),
-                ..Parts::default()
-            },
-            transistor: preset("general-purpose-npn").unwrap(),
-        }
+        Stage::example()
     }
 
     /// The value of `q` from an ordinary analysis.
