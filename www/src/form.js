@@ -1,0 +1,308 @@
+/* The design form: a field per design-file key (schema.js), what each
+ * entry was understood as, its nearest standard value and the button that
+ * snaps to it, preset placeholders, the stage's parts shown or hidden, the
+ * heading; each edit updates the design and recomputes. Methods of the
+ * element. */
+
+import { getPath, own, setPath, storedValue } from "./design.js";
+import { h } from "./dom.js";
+import { asFieldError, presetData } from "./engine.js";
+import { SERIES_CHOICES, STAGES, STAGE_PARTS } from "./schema.js";
+
+/** The form's methods, mixed into the element (element.js). */
+export const withForm = (Base) => class extends Base {
+  _seriesSelect(family, label) {
+    const sel = h("select", { "aria-label": label, class: "series" },
+      SERIES_CHOICES.map((s) => h("option", { value: s }, s)));
+    sel.value = this._series[family];
+    sel.addEventListener("change", () => {
+      this._series[family] = sel.value;
+      for (const f of this._fields.values()) if (f.spec.series === family) this._refreshField(f);
+    });
+    return sel;
+  }
+
+  _buildGroup(group) {
+    const id = this._id;
+    const fs = h("fieldset", { class: `group group-${group.id}`, "data-group": group.id });
+    fs.append(h("legend", null, group.legend));
+    if (group.id === "parts") {
+      fs.append(h("div", { class: "series-row" },
+        h("span", null, "Standard values:"),
+        h("label", null, "resistors ", this._seriesR),
+        h("label", null, "capacitors ", this._seriesC)));
+      this._partsNote = h("p", { class: "note", hidden: true });
+      fs.append(this._partsNote);
+    }
+    if (group.id === "transistor") {
+      this._presetNote = h("p", { class: "note" });
+      fs.append(this._presetNote);
+    }
+    for (const spec of group.fields) {
+      const fid = id("f-" + spec.key);
+      const label = h("label", { for: fid },
+        h("span", { class: "name" }, spec.key),
+        h("span", { class: "desc" }, spec.desc));
+      let input;
+      if (spec.kind === "select") {
+        input = h("select", { id: fid, name: spec.key });
+        if (spec.options) for (const [v, t] of spec.options) input.append(h("option", { value: v }, t));
+      } else if (spec.kind === "textarea") {
+        input = h("textarea", { id: fid, name: spec.key, rows: 2, spellcheck: "true", maxlength: spec.maxlength });
+      } else {
+        input = h("input", {
+          id: fid,
+          name: spec.key,
+          type: "text",
+          autocomplete: "off",
+          spellcheck: "false",
+          autocapitalize: "off",
+          maxlength: spec.maxlength,
+        });
+      }
+      const understood = h("output", { id: id("u-" + spec.key), class: "understood", for: fid });
+      const error = h("p", { id: id("e-" + spec.key), class: "error", hidden: true });
+      const snap = h("button", { type: "button", class: "snap", hidden: true });
+      const std = h("span", { class: "std", hidden: true });
+      if (spec.kind === "value") {
+        input.setAttribute("aria-describedby", `${understood.id} ${error.id}`);
+      }
+      const unit = spec.kind === "value" ? h("span", { class: "unit", "aria-hidden": "true" }, spec.unit) : null;
+      const row = h("div", { class: `field field-${spec.kind}`, "data-key": spec.key },
+        label,
+        h("div", { class: "entry" }, input, unit),
+        spec.kind === "value" ? h("div", { class: "aside" }, understood, std, snap) : null,
+        error);
+      fs.append(row);
+      const f = { spec, input, understood, error, snap, std, row };
+      this._fields.set(spec.key, f);
+      const handler = () => this._onEdit(f);
+      input.addEventListener(spec.kind === "select" ? "change" : "input", handler);
+      snap.addEventListener("click", () => this._snap(f));
+    }
+    return fs;
+  }
+
+  _fillForm() {
+    const d = this._design;
+    for (const f of this._fields.values()) {
+      const v = getPath(d, f.spec.path);
+      const text = v === undefined || v === null ? "" : String(v);
+      if (f.spec.kind === "select") {
+        if (text && !Array.from(f.input.options).some((o) => o.value === text)) {
+          f.input.append(h("option", { value: text }, text));
+        }
+        f.input.value = text;
+      } else {
+        f.input.value = text;
+      }
+      this._setFieldError(f, "");
+    }
+    this._refreshAllFields();
+    this._refreshHeading();
+    this._applyStage();
+  }
+
+  _refreshAllFields() {
+    for (const f of this._fields.values()) this._refreshField(f);
+    this._refreshPresetNote();
+  }
+
+  /** Re-reads one field's text: understood value, standard value, error. */
+  _refreshField(f) {
+    const spec = f.spec;
+    if (spec.kind !== "value") return;
+    const text = f.input.value.trim();
+    f.snap.hidden = true;
+    f.std.hidden = true;
+    const api = this._api;
+    if (!text) {
+      f.understood.textContent = this._placeholderText(spec);
+      f.understood.classList.add("muted");
+      f.input.placeholder = this._placeholderValue(spec);
+      this._setFieldError(f, "");
+      return { ok: true, empty: true };
+    }
+    f.understood.classList.remove("muted");
+    if (!api) {
+      f.understood.textContent = "";
+      return { ok: true };
+    }
+    let value;
+    try {
+      value = api.parse_value(spec.key, text, spec.unit);
+    } catch (err) {
+      const e = asFieldError(err);
+      f.understood.textContent = "";
+      this._setFieldError(f, e.message);
+      return { ok: false, message: e.message };
+    }
+    this._setFieldError(f, "");
+    f.understood.textContent = "= " + api.format_si(value, spec.unit);
+    if (spec.series && value > 0 && !this.hasAttribute("readonly")) this._showSeries(f, value);
+    return { ok: true, value };
+  }
+
+  _showSeries(f, value) {
+    const api = this._api;
+    const name = this._series[f.spec.series];
+    let look = null;
+    try {
+      look = api.series_lookup(name, value);
+    } catch (e) {
+      look = null;
+    }
+    if (!look) return;
+    if (Math.abs(look.error) < 1e-6) {
+      f.std.textContent = `${name} value`;
+      f.std.hidden = false;
+      return;
+    }
+    const target = api.format_si(look.nearest, f.spec.unit);
+    f.snap.textContent = "";
+    f.snap.append(h("span", { class: "snap-series" }, name), " ", target);
+    f.snap.setAttribute("aria-label", `Use the nearest ${name} value, ${target}, for ${f.spec.key}`);
+    f.snap.title = `Nearest ${name} value (${(look.error * 100).toFixed(1)} % away)`;
+    f.snap.dataset.value = String(look.nearest);
+    f.snap.hidden = false;
+  }
+
+  _placeholderValue(spec) {
+    if (spec.key === "ambient") return "25";
+    const preset = this._presetValues();
+    if (preset && spec.path[0] === "transistor" && preset[spec.key] !== undefined && this._api) {
+      const v = preset[spec.key];
+      return typeof v === "number" ? this._api.format_si(v, spec.unit) : String(v);
+    }
+    return "";
+  }
+
+  _placeholderText(spec) {
+    if (spec.key === "ambient") return "default 25 °C";
+    if (spec.path[0] === "transistor") {
+      return getPath(this._design, ["transistor", "preset"]) ? "from the class" : "not given";
+    }
+    if (spec.path[0] === "requirements") return "no requirement";
+    if (spec.path[0] === "parts" && spec.key !== "resistor_rating") return "not fitted";
+    return "not given";
+  }
+
+  _presetValues() {
+    const name = getPath(this._design, ["transistor", "preset"]);
+    return presetData(this._api, name);
+  }
+
+  _refreshPresetNote() {
+    if (!this._presetNote) return;
+    const name = getPath(this._design, ["transistor", "preset"]);
+    this._presetNote.textContent = name
+      ? "Empty fields take the class's typical values; type a value to override it with your device's data."
+      : "Choose a device class, or enter the device's data below.";
+  }
+
+  _setFieldError(f, message) {
+    f.error.textContent = message;
+    f.error.hidden = !message;
+    if (message) {
+      f.input.setAttribute("aria-invalid", "true");
+      f.row.classList.add("invalid");
+    } else {
+      f.input.removeAttribute("aria-invalid");
+      f.row.classList.remove("invalid");
+    }
+  }
+
+  _onEdit(f) {
+    const spec = f.spec;
+    const raw = f.input.value;
+    const text = spec.kind === "textarea" || spec.kind === "text" ? raw : raw.trim();
+    if (spec.kind === "value") {
+      const r = this._refreshField(f);
+      if (!r || !r.ok) {
+        this._invalid.set(spec.key, r ? r.message : "");
+        this._markStale(true);
+        this._announce(r && r.message ? r.message : "");
+        return;
+      }
+      this._invalid.delete(spec.key);
+      setPath(this._design, spec.path, r.empty ? undefined : storedValue(text));
+    } else {
+      setPath(this._design, spec.path, text === "" ? undefined : text);
+      if (spec.key === "preset") {
+        this._refreshAllFields();
+      }
+    }
+    if (spec.key === "title" || spec.key === "stage" || spec.key === "supply") this._refreshHeading();
+    if (spec.key === "stage") this._applyStage();
+    this._isExample = false;
+    this._recompute();
+  }
+
+  _snap(f) {
+    const v = Number(f.snap.dataset.value);
+    if (!Number.isFinite(v) || !this._api) return;
+    // "4.7 kΩ" is written "4.7k": the unit stands beside the field.
+    const unit = f.spec.unit;
+    let text = this._api.format_si(v, unit);
+    if (unit && text.endsWith(unit)) text = text.slice(0, -unit.length);
+    text = text.replace(/\s+/g, "").replace(/µ/g, "u");
+    try {
+      const back = this._api.parse_value(f.spec.key, text, f.spec.unit);
+      if (Math.abs(back - v) > 1e-9 * Math.abs(v)) text = String(v);
+    } catch (e) {
+      text = String(v);
+    }
+    f.input.value = text;
+    this._onEdit(f);
+    f.input.focus();
+  }
+
+  _applyStage() {
+    const stage = this._design.stage;
+    const used = own(STAGE_PARTS, stage) || STAGE_PARTS["common-emitter"];
+    const unused = [];
+    for (const f of this._fields.values()) {
+      if (!f.spec.series) continue;
+      const on = used.includes(f.spec.key);
+      f.row.hidden = !on;
+      const v = getPath(this._design, f.spec.path);
+      if (!on && v !== undefined && v !== "") unused.push(f.spec.key);
+    }
+    if (this._partsNote) {
+      this._partsNote.hidden = unused.length === 0;
+      this._partsNote.textContent = unused.length
+        ? `Kept but not used by this stage: ${unused.join(", ")}.`
+        : "";
+    }
+  }
+
+  _refreshHeading() {
+    const d = this._design;
+    const title = typeof d.title === "string" && d.title.trim() ? d.title : "Untitled stage";
+    this._titleEl.textContent = title;
+    const stage = STAGES.find(([v]) => v === d.stage);
+    const supply = getPath(d, ["supply"]);
+    const parts = [stage ? stage[1] : String(d.stage || "")];
+    if (supply !== undefined && this._api) {
+      try {
+        parts.push(this._api.format_si(this._api.parse_value("supply", String(supply), "V"), "V") + " supply");
+      } catch (e) {
+        /* shown at the field */
+      }
+    }
+    this._stageEl.textContent = parts.filter(Boolean).join(" · ");
+  }
+
+  _focusField(key) {
+    if (key === "transistor") key = "preset";
+    const f = this._fields.get(key);
+    if (!f) return;
+    if (!this._formBox.open) this._formBox.open = true;
+    f.row.hidden = false;
+    f.input.focus({ preventScroll: true });
+    f.row.scrollIntoView({ block: "nearest", behavior: "smooth" });
+    f.row.classList.remove("flash");
+    void f.row.offsetWidth;
+    f.row.classList.add("flash");
+  }
+};

@@ -1,0 +1,251 @@
+/* The plots: the theme read from the CSS custom properties (as colours the
+ * wasm plotter reads), the plot descriptions made from an analysis, the
+ * canvases drawn by the engine (gain and phase, impedances, load lines)
+ * and the numbers behind each plot as a table. Methods of the element. */
+
+import { h } from "./dom.js";
+import { asFieldError } from "./engine.js";
+
+let colorProbe = null;
+
+/** Any CSS colour as "#rrggbb" or "#rrggbbaa", which the plotter reads
+ * (a canvas gives back "#rrggbb" or "rgba(r, g, b, a)"). */
+function cssColor(value, fallback) {
+  if (!colorProbe) colorProbe = document.createElement("canvas").getContext("2d");
+  if (!colorProbe) return fallback;
+  colorProbe.fillStyle = fallback;
+  if (value) colorProbe.fillStyle = value;
+  const c = String(colorProbe.fillStyle);
+  const m = /^rgba?\((\d+), (\d+), (\d+)(?:, ([\d.]+))?\)$/.exec(c);
+  if (!m) return c;
+  const hex = (n) => Math.round(n).toString(16).padStart(2, "0");
+  return "#" + hex(m[1]) + hex(m[2]) + hex(m[3]) + hex(255 * (m[4] === undefined ? 1 : Number(m[4])));
+}
+
+/** Phase in degrees made continuous (no jump between −180° and 180°), for
+ * the plot; the report and the sweep keep the principal value. */
+function unwrapDegrees(values) {
+  const out = new Float64Array(values.length);
+  let shift = 0;
+  for (let i = 0; i < values.length; i++) {
+    const v = values[i];
+    if (i > 0 && Number.isFinite(v) && Number.isFinite(values[i - 1])) {
+      const step = v - values[i - 1];
+      if (step > 180) shift -= 360;
+      else if (step < -180) shift += 360;
+    }
+    out[i] = v + shift;
+  }
+  return out;
+}
+
+/** The plots' methods, mixed into the element (element.js). */
+export const withPlots = (Base) => class extends Base {
+  _buildPlots() {
+    const id = this._id;
+    const plot = (key, title, desc, tall) => {
+      const canvas = h("canvas", { class: "plot" + (tall ? " tall" : ""), role: "img", "aria-label": `${title}: ${desc}` });
+      const table = h("div", { class: "table-wrap" });
+      const numbers = h("details", { class: "plot-numbers" }, h("summary", null, "Show numbers"), table);
+      numbers.addEventListener("toggle", () => {
+        if (numbers.open) this._fillPlotTable(key);
+      });
+      const fig = h("figure", { class: "card plot-card", "data-plot": key },
+        h("figcaption", null, h("h3", { id: id("h-" + key) }, title), h("span", { class: "hint" }, desc)),
+        canvas, numbers);
+      return { fig, canvas, table, numbers };
+    };
+    this._plotParts = {
+      gain: plot("gain", "Gain and phase", "voltage, current and power gain in dB, and phase, against frequency", true),
+      impedance: plot("impedance", "Impedances", "input and output impedance magnitude against frequency"),
+      loadlines: plot("loadlines", "Load lines", "DC and AC load lines over the output characteristics, with the quiescent point and swing limits"),
+    };
+    return h("section", { class: "plots", "aria-label": "Plots" },
+      ...Object.values(this._plotParts).map((p) => p.fig));
+  }
+
+  _canvases() {
+    return this._plotParts ? Object.values(this._plotParts).map((p) => p.canvas) : [];
+  }
+
+  _schedulePlots() {
+    if (this._plotFrame) return;
+    this._plotFrame = requestAnimationFrame(() => {
+      this._plotFrame = 0;
+      this._drawPlots();
+    });
+  }
+
+  /** Plot colours and type from the CSS custom properties; read once and
+   * again after a resize, a colour-scheme change or a theme attribute. */
+  _theme() {
+    if (!this._themeCache) this._themeCache = this._readTheme();
+    return this._themeCache;
+  }
+
+  _readTheme() {
+    const cs = getComputedStyle(this);
+    const get = (name, fb) => cssColor(cs.getPropertyValue(name).trim(), fb);
+    return {
+      theme: {
+        background: get("--sw-plot-bg", "#ffffff"),
+        foreground: get("--sw-ink", "#202020"),
+        grid: get("--sw-grid", "#dddddd"),
+        // A short family list: the canvas parses it on every label.
+        font_family: cs.getPropertyValue("--sw-plot-font").trim() || "system-ui, sans-serif",
+        font_size: 11.5,
+      },
+      traces: [1, 2, 3, 4].map((i) => get(`--sw-trace-${i}`, "#000000")),
+      muted: get("--sw-ink-soft", "#666666"),
+      marker: get("--sw-marker", "#aa3300"),
+    };
+  }
+
+  /** Turns the analysis into the plot descriptions the wasm plotter takes.
+   * Returns {gain, impedance, loadlines} specs (null where no data). */
+  _plotSpecs(analysis) {
+    const t = this._theme();
+    const sweep = analysis && analysis.sweep;
+    const curves = analysis && analysis.curves;
+    const report = analysis && analysis.report;
+    const bw = (report && report.bandwidth) || {};
+    const markers = [];
+    if (typeof bw.f_low === "number") markers.push({ x: bw.f_low, label: "fL", color: t.muted });
+    if (typeof bw.f_high === "number") markers.push({ x: bw.f_high, label: "fH", color: t.muted });
+    const specs = { gain: null, impedance: null, loadlines: null, theme: t };
+    if (sweep && sweep.freq) {
+      specs.gain = {
+        freq: sweep.freq,
+        series: [
+          { name: "voltage gain", values: sweep.voltage_gain_db, color: t.traces[0] },
+          { name: "current gain", values: sweep.current_gain_db, color: t.traces[1] },
+          { name: "power gain", values: sweep.power_gain_db, color: t.traces[2], dashed: true },
+        ].filter((s) => s.values),
+        y_unit: "dB",
+        phase: sweep.phase_deg ? { name: "phase of voltage gain", values: unwrapDegrees(sweep.phase_deg), color: t.traces[0] } : null,
+        x_markers: markers,
+        theme: t.theme,
+      };
+      specs.impedance = {
+        freq: sweep.freq,
+        series: [
+          { name: "|Zin|", values: sweep.input_impedance, color: t.traces[0] },
+          { name: "|Zout|", values: sweep.output_impedance, color: t.traces[1] },
+        ].filter((s) => s.values),
+        y_unit: "Ω",
+        y_log: true,
+        x_markers: markers,
+        theme: t.theme,
+      };
+    }
+    if (curves) {
+      const list = [];
+      const labels = [];
+      let right = 0;
+      for (const c of curves.characteristics || []) {
+        list.push({ name: "", x: c.vce, y: c.ic, color: t.muted, width: 1 });
+        const n = c.vce ? c.vce.length : 0;
+        if (n) right = Math.max(right, c.vce[n - 1]);
+        if (n && c.label) labels.push({ x: c.vce[n - 1], y: c.ic[n - 1], label: c.label, color: t.muted, shape: "none" });
+      }
+      if (curves.dc_load_line) list.push({ name: "DC load line", x: curves.dc_load_line.vce, y: curves.dc_load_line.ic, color: t.traces[0], width: 2 });
+      if (curves.ac_load_line) list.push({ name: "AC load line", x: curves.ac_load_line.vce, y: curves.ac_load_line.ic, color: t.traces[1], width: 2, dashed: true });
+      const marks = labels.slice();
+      if (curves.quiescent) marks.push({ x: curves.quiescent.vce, y: curves.quiescent.ic, label: "Q", color: t.marker, shape: "dot" });
+      for (const s of curves.swing_limits || []) marks.push({ x: s.vce, y: s.ic, label: s.label || "", color: t.marker, shape: "cross" });
+      specs.loadlines = {
+        curves: list, markers: marks, x_name: "VCE", y_name: "IC", x_unit: "V", y_unit: "A", theme: t.theme,
+      };
+      // Room on the right for the base-current labels at the curve ends.
+      if (right > 0) specs.loadlines.x_range = new Float64Array([0, right * 1.3]);
+    }
+    return specs;
+  }
+
+  /** Draws every plot from the current analysis (or `analysis` if given). */
+  _drawPlots(analysis) {
+    const api = this._api;
+    if (!api || !this._plotParts) return;
+    const a = analysis || this._analysis;
+    const specs = this._plotSpecs(a);
+    this._specs = specs;
+    const empty = "no data for this design";
+    const draw = (key, fn, spec, emptySpec) => {
+      const p = this._plotParts[key];
+      // The size the ResizeObserver saw, or else the CSS box × devicePixelRatio.
+      let size = this._canvasSize.get(p.canvas);
+      if (!size) {
+        const ratio = window.devicePixelRatio || 1;
+        size = { w: Math.round(p.canvas.clientWidth * ratio), h: Math.round(p.canvas.clientHeight * ratio), ratio };
+      }
+      const sized = { pixel_size: new Float64Array([size.w, size.h]), pixel_ratio: size.ratio };
+      try {
+        fn(p.canvas, Object.assign({}, spec || Object.assign({ empty_text: empty, theme: specs.theme.theme }, emptySpec), sized));
+      } catch (err) {
+        p.canvas.setAttribute("data-error", asFieldError(err).message);
+      }
+      // An open table follows a moment later, not on every keystroke.
+      if (p.numbers.open) {
+        clearTimeout(p.tableTimer);
+        p.tableTimer = setTimeout(() => this._fillPlotTable(key), 250);
+      }
+    };
+    draw("gain", api.plot_frequency, specs.gain, { series: [] });
+    draw("impedance", api.plot_frequency, specs.impedance, { series: [] });
+    draw("loadlines", api.plot_xy, specs.loadlines, { curves: [] });
+  }
+
+  /** The numbers behind a plot, as a table (built only when shown). */
+  _fillPlotTable(key) {
+    const p = this._plotParts[key];
+    const api = this._api;
+    const spec = this._specs && this._specs[key];
+    p.table.textContent = "";
+    if (!spec || !api) {
+      p.table.append(h("p", { class: "hint" }, "No numbers yet."));
+      return;
+    }
+    const f = (v, unit) => (typeof v === "number" && Number.isFinite(v) ? api.format_si(v, unit) : "—");
+    const table = h("table", { class: "numbers" });
+    if (key === "gain" || key === "impedance") {
+      const cols = spec.series.slice();
+      if (spec.phase) cols.push(Object.assign({}, spec.phase, { unit: "°" }));
+      table.append(h("thead", null, h("tr", null,
+        h("th", { scope: "col" }, "frequency"),
+        ...cols.map((c) => h("th", { scope: "col" }, c.name)))));
+      const body = h("tbody", null);
+      const n = spec.freq.length;
+      for (let i = 0; i < n; i++) {
+        body.append(h("tr", null,
+          h("th", { scope: "row" }, f(spec.freq[i], "Hz")),
+          ...cols.map((c) => h("td", null, f(c.values[i], c.unit || spec.y_unit)))));
+      }
+      table.append(body);
+    } else {
+      table.append(h("thead", null, h("tr", null,
+        h("th", { scope: "col" }, "curve or point"), h("th", { scope: "col" }, "VCE"), h("th", { scope: "col" }, "IC"))));
+      const body = h("tbody", null);
+      for (const m of spec.markers) {
+        if (m.shape === "none") continue;
+        body.append(h("tr", null, h("th", { scope: "row" }, m.label || "point"), h("td", null, f(m.x, "V")), h("td", null, f(m.y, "A"))));
+      }
+      const named = spec.curves.filter((c) => c.name);
+      for (const c of named) {
+        for (let i = 0; i < c.x.length; i++) {
+          body.append(h("tr", null, h("th", { scope: "row" }, c.name), h("td", null, f(c.x[i], "V")), h("td", null, f(c.y[i], "A"))));
+        }
+      }
+      const chars = spec.markers.filter((m) => m.shape === "none");
+      const unnamed = spec.curves.filter((c) => !c.name);
+      unnamed.forEach((c, k) => {
+        const label = chars[k] ? chars[k].label : `curve ${k + 1}`;
+        const step = Math.max(1, Math.ceil(c.x.length / 8));
+        for (let i = 0; i < c.x.length; i += step) {
+          body.append(h("tr", null, h("th", { scope: "row" }, label), h("td", null, f(c.x[i], "V")), h("td", null, f(c.y[i], "A"))));
+        }
+      });
+      table.append(body);
+    }
+    p.table.append(table);
+  }
+};

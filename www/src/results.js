@@ -1,0 +1,286 @@
+/* The results: the report laid out in cards of labelled <output>s
+ * (operating point, small-signal model, midband, bandwidth, swing,
+ * dissipation), the ratings and requirement checks, the cautions with the
+ * deferral to local practice, and the summary announced after each
+ * recompute. Methods of the element. */
+
+import { h, sym, symNodes } from "./dom.js";
+
+/** Units and names of the checks that mirror requirements. */
+const CHECK_INFO = {
+  min_voltage_gain_db: ["voltage gain", "dB", "≥"],
+  max_voltage_gain_db: ["voltage gain", "dB", "≤"],
+  min_input_impedance: ["input impedance", "Ω", "≥"],
+  max_output_impedance: ["output impedance", "Ω", "≤"],
+  min_swing: ["output swing (peak)", "V", "≥"],
+  max_f_low: ["lower corner", "Hz", "≤"],
+  min_f_high: ["upper corner", "Hz", "≥"],
+  max_supply_current: ["supply current", "A", "≤"],
+  max_junction_temperature: ["junction temperature", "°C", "≤"],
+  vceo: ["VCEO rating", "V", ""],
+  ic_max: ["collector current rating", "A", ""],
+  ptot: ["dissipation rating", "W", ""],
+  tj_max: ["junction temperature rating", "°C", ""],
+};
+
+export const DEFERRAL =
+  "These figures come from simplified device models. Confirm them by measurement, " +
+  "check them against the data of the parts actually used, and follow the codes, " +
+  "standards and licensed practice that apply where the design will be built.";
+
+const OP_ROWS = [
+  ["ic", sym("I", "C"), "A", "collector current"],
+  ["ib", sym("I", "B"), "A", "base current"],
+  ["ie", sym("I", "E"), "A", "emitter current"],
+  ["vce", sym("V", "CE"), "V", "collector-emitter voltage"],
+  ["vbe", sym("V", "BE"), "V", "base-emitter voltage"],
+  ["vb", sym("V", "B"), "V", "base voltage"],
+  ["ve", sym("V", "E"), "V", "emitter voltage"],
+  ["vc", sym("V", "C"), "V", "collector voltage"],
+];
+const SMALL_ROWS = [
+  ["gm", sym("g", "m"), "S", "transconductance"],
+  ["r_pi", sym("r", "π"), "Ω", "base input resistance"],
+  ["r_o", sym("r", "o"), "Ω", "output resistance"],
+  ["c_pi", sym("C", "π"), "F", "base-emitter capacitance"],
+  ["c_mu", sym("C", "μ"), "F", "base-collector capacitance"],
+];
+const MID_ROWS = [
+  ["voltage_gain", sym("A", "v"), "gain", "voltage gain"],
+  ["voltage_gain_from_source", sym("A", "vs"), "gain", "voltage gain from the source"],
+  ["current_gain", sym("A", "i"), "gain", "current gain"],
+  ["power_gain_db", sym("G", "p"), "dB", "power gain"],
+  ["input_impedance", sym("Z", "in"), "Ω", "input impedance"],
+  ["output_impedance", sym("Z", "out"), "Ω", "output impedance"],
+];
+const BW_ROWS = [
+  ["f_low", sym("f", "L"), "Hz", "lower corner (−3 dB)"],
+  ["f_high", sym("f", "H"), "Hz", "upper corner (−3 dB)"],
+  ["f_unity_current_gain", sym("f", "T"), "Hz", "unity current gain"],
+  ["f_unity_power_gain", sym("f", "max"), "Hz", "unity power gain"],
+];
+const SWING_ROWS = [
+  ["positive", sym("+"), "V", "positive peak at the load"],
+  ["negative", sym("−"), "V", "negative peak at the load"],
+  ["symmetric", sym("±"), "V", "peak of the largest undistorted sine"],
+];
+const DISS_ROWS = [
+  ["transistor", sym("P", "D"), "W", "transistor dissipation"],
+  ["ptot_available", sym("P", "tot"), "W", "dissipation rating at this ambient"],
+  ["junction_temperature", sym("T", "J"), "°C", "junction temperature"],
+  ["supply_current", sym("I", "S"), "A", "supply current"],
+];
+
+/** A card of labelled <output>s; returns {card, outputs: key -> output}. */
+function quantityCard(id, title, rows, extra) {
+  const outputs = {};
+  const dl = h("dl", { class: "quantities" });
+  for (const [key, symbol, , desc] of rows) {
+    const out = h("output", { "data-key": `${id}.${key}` }, "—");
+    outputs[key] = out;
+    dl.append(
+      h("div", { class: "q" },
+        h("dt", null, h("span", { class: "sym" }, symNodes(symbol)), h("span", { class: "desc" }, desc)),
+        h("dd", null, out)),
+    );
+  }
+  const card = h("section", { class: `card card-${id}`, "aria-labelledby": `h-${id}` },
+    h("h3", { id: `h-${id}` }, title), extra || null, dl);
+  return { card, outputs };
+}
+
+/** The value shown for a corner requirement whose corner was not found
+ * (the report's bandwidth.low_edge / high_edge say why), else "". */
+function cornerValue(report, id) {
+  const b = report.bandwidth || {};
+  const edge = id === "max_f_low" ? b.low_edge : id === "min_f_high" ? b.high_edge : "corner";
+  if (edge === "none" || edge === "no-passband") return "none";
+  if (edge === "beyond-search") return id === "max_f_low" ? "< 1 mHz" : "> 1 THz";
+  return "";
+}
+
+function pct(x) {
+  return `${(x * 100).toFixed(x < 0.1 ? 1 : 0)} %`;
+}
+
+/** The results' methods, mixed into the element (element.js). */
+export const withResults = (Base) => class extends Base {
+  _buildResults() {
+    const id = this._id;
+    this._resultNotice = h("p", { class: "notice", hidden: true });
+    this._cautions = h("section", { class: "cautions", hidden: true, role: "note", "aria-labelledby": id("h-cautions") },
+      h("h3", { id: id("h-cautions") }, "Cautions"),
+      h("ul", null),
+      h("p", { class: "deferral" }, DEFERRAL));
+
+    const region = h("span", { class: "region", "data-region": "" }, "—");
+    const op = quantityCard("operating_point", "Operating point", OP_ROWS, h("p", { class: "region-line" }, "Region: ", region));
+    const small = quantityCard("small_signal", "Small-signal model", SMALL_ROWS);
+    const mid = quantityCard("midband", "Midband", MID_ROWS);
+    const bw = quantityCard("bandwidth", "Bandwidth", BW_ROWS);
+    const swing = quantityCard("swing", "Output swing", SWING_ROWS);
+    const resistorTable = h("table", { class: "numbers resistors" },
+      h("caption", null, "Resistors"),
+      h("thead", null, h("tr", null, h("th", { scope: "col" }, "part"), h("th", { scope: "col" }, "dissipation"),
+        h("th", { scope: "col" }, "of limit"))),
+      h("tbody", null));
+    const diss = quantityCard("dissipation", "Dissipation and temperature", DISS_ROWS);
+    diss.card.append(resistorTable);
+
+    const checksBody = h("tbody", null);
+    const checks = h("section", { class: "card card-checks", "aria-labelledby": id("h-checks") },
+      h("h3", { id: id("h-checks") }, "Ratings and requirements"),
+      h("p", { class: "checks-summary" }, "No checks."),
+      h("table", { class: "numbers checks" },
+        h("thead", null, h("tr", null,
+          h("th", { scope: "col" }, "result"), h("th", { scope: "col" }, "check"),
+          h("th", { scope: "col" }, "value"), h("th", { scope: "col" }, "limit"),
+          h("th", { scope: "col" }, "note"))),
+        checksBody));
+
+    this._out = {
+      region,
+      operating_point: op.outputs,
+      small_signal: small.outputs,
+      midband: mid.outputs,
+      bandwidth: bw.outputs,
+      swing: swing.outputs,
+      dissipation: diss.outputs,
+      resistors: resistorTable.tBodies[0],
+      checks: checksBody,
+      checksSummary: checks.querySelector(".checks-summary"),
+      checksCard: checks,
+    };
+    this._resultsBody = h("div", { class: "result-grid" },
+      checks, op.card, mid.card, bw.card, swing.card, diss.card, small.card);
+    return h("section", { class: "results", "aria-labelledby": id("h-results") },
+      h("h3", { id: id("h-results"), class: "visually-hidden" }, "Results"),
+      this._resultNotice, this._cautions, this._resultsBody);
+  }
+
+  _clearResults() {
+    if (!this._out) return;
+    for (const group of ["operating_point", "small_signal", "midband", "bandwidth", "swing", "dissipation"]) {
+      for (const out of Object.values(this._out[group])) out.textContent = "—";
+    }
+    this._out.region.textContent = "—";
+    this._out.region.setAttribute("data-region", "");
+    this._out.resistors.textContent = "";
+    this._out.checks.textContent = "";
+    this._cautions.hidden = true;
+    this._results.classList.remove("stale");
+  }
+
+  /** Lays a report (format "stagewright-report/1") out in the results
+   * area. Missing blocks and null values show as "—" or "none". */
+  renderReport(report) {
+    if (!report || typeof report !== "object") return;
+    const api = this._api;
+    const fmt = (v, unit) => {
+      if (v === null || v === undefined) return "none";
+      if (typeof v !== "number" || !Number.isFinite(v)) return "—";
+      return api ? api.format_si(v, unit) : String(v);
+    };
+    const fill = (group, rows, values, custom) => {
+      const outs = this._out[group];
+      for (const [key, , unit] of rows) {
+        const v = values ? values[key] : undefined;
+        outs[key].textContent = custom ? custom(key, v, unit) : v === undefined ? "—" : fmt(v, unit);
+      }
+    };
+
+    const op = report.operating_point || {};
+    fill("operating_point", OP_ROWS, op);
+    const region = typeof op.region === "string" ? op.region : "";
+    this._out.region.textContent = region || "—";
+    this._out.region.setAttribute("data-region", region);
+
+    fill("small_signal", SMALL_ROWS, report.small_signal || {});
+
+    fill("midband", MID_ROWS, report.midband || {}, (key, v, unit) => {
+      if (v === undefined) return "—";
+      if (unit !== "gain") return fmt(v, unit);
+      if (typeof v !== "number" || !Number.isFinite(v)) return fmt(v, "");
+      const db = v === 0 ? "−∞" : api ? api.format_si(20 * Math.log10(Math.abs(v)), "dB") : "";
+      return `${fmt(v, "")} (${db})`;
+    });
+
+    fill("bandwidth", BW_ROWS, report.bandwidth || {});
+
+    const swing = report.swing || {};
+    fill("swing", SWING_ROWS, swing);
+
+    const diss = report.dissipation || {};
+    fill("dissipation", DISS_ROWS, diss);
+    // Each resistor against the limit of its rating check.
+    const checks = Array.isArray(report.checks) ? report.checks : [];
+    const limits = {};
+    for (const c of checks) {
+      if (typeof c.id === "string" && c.id.startsWith("resistor_power.")) limits[c.id.slice(15)] = c.limit;
+    }
+    const tbody = this._out.resistors;
+    tbody.textContent = "";
+    const resistors = diss.resistors && typeof diss.resistors === "object" ? diss.resistors : {};
+    for (const [name, watts] of Object.entries(resistors)) {
+      const share = limits[name] > 0 && typeof watts === "number" ? watts / limits[name] : null;
+      const tr = h("tr", { class: share !== null && share > 1 ? "over" : share !== null && share > 0.5 ? "near" : "" },
+        h("th", { scope: "row" }, name),
+        h("td", null, fmt(watts, "W")),
+        h("td", null, share === null ? "—" : pct(share)));
+      tbody.append(tr);
+    }
+
+    // Ratings and requirement checks.
+    const cbody = this._out.checks;
+    cbody.textContent = "";
+    let passed = 0;
+    for (const c of checks) {
+      const id = String(c.id || "check");
+      const info = CHECK_INFO[id] ||
+        (id.startsWith("resistor_power.") ? [`${id.slice(15)} power rating`, "W", ""] : null) ||
+        [id.replace(/_/g, " "), typeof c.unit === "string" ? c.unit : "", ""];
+      const [name, unit, rel] = info;
+      if (c.pass) passed++;
+      cbody.append(h("tr", { class: c.pass ? "pass" : "fail" },
+        h("td", null, h("span", { class: "verdict" }, c.pass ? "✓ met" : "✗ not met")),
+        h("th", { scope: "row" }, name, rel ? h("span", { class: "rel" }, " " + rel) : null),
+        h("td", null, cornerValue(report, id) || fmt(c.value, unit)),
+        h("td", null, fmt(c.limit, unit)),
+        h("td", { class: "msg" }, typeof c.message === "string" ? c.message : "")));
+    }
+    this._out.checksSummary.textContent = checks.length
+      ? `${passed} of ${checks.length} checks met: ratings first, then the design's requirements.`
+      : "No checks.";
+    this._out.checksCard.classList.toggle("has-fail", passed < checks.length);
+
+    // Cautions, prominently, with the deferral to local practice.
+    const cautions = Array.isArray(report.cautions) ? report.cautions : [];
+    const ul = this._cautions.querySelector("ul");
+    ul.textContent = "";
+    // The deferral to local codes and licensed practice, once under the
+    // list; marked when a caution is about harm (the engine's `safety`).
+    for (const c of cautions) {
+      ul.append(h("li", { "data-id": String(c.id || "") }, typeof c.message === "string" ? c.message : String(c.id)));
+    }
+    const deferral = this._cautions.querySelector(".deferral");
+    deferral.classList.toggle("safety", cautions.some((c) => c.safety === true));
+    this._cautions.hidden = cautions.length === 0;
+  }
+
+  _summary(report) {
+    const api = this._api;
+    const op = report.operating_point || {};
+    const mid = report.midband || {};
+    const bits = [];
+    if (op.region) bits.push(`${op.region} region`);
+    if (typeof op.ic === "number") bits.push(`collector current ${api.format_si(op.ic, "A")}`);
+    if (typeof mid.voltage_gain === "number" && mid.voltage_gain !== 0) {
+      bits.push(`voltage gain ${api.format_si(20 * Math.log10(Math.abs(mid.voltage_gain)), "dB")}`);
+    }
+    const checks = Array.isArray(report.checks) ? report.checks : [];
+    if (checks.length) bits.push(`${checks.filter((c) => c.pass).length} of ${checks.length} checks met`);
+    const cautions = Array.isArray(report.cautions) ? report.cautions.length : 0;
+    if (cautions) bits.push(`${cautions} caution${cautions === 1 ? "" : "s"}`);
+    return "Results: " + bits.join(", ") + ".";
+  }
+};
