@@ -140,8 +140,8 @@ pub use ratings::{
 };
 #[cfg(feature = "serde")]
 pub use report::{
-    DesignResult, Entries, PartEntry, Report, SweepRow, SweepTable, ToleranceDocument,
-    REPORT_FORMAT, SWEEP_FORMAT, TOLERANCE_FORMAT,
+    DesignResult, Entries, PartEntry, Report, SweepRow, SweepTable, REPORT_FORMAT, SWEEP_FORMAT,
+    TOLERANCE_FORMAT,
 };
 pub use requirements::{Bound, Requirement, Requirements, REQUIREMENTS};
 pub use response::{log_frequencies, Bandwidth, Edge, Response, SEARCH_FROM, SEARCH_TO};
@@ -161,7 +161,7 @@ pub use synthesis::{
 pub use tolerance::{
     sensitivity, tolerance_analysis, worst_case, worst_checks, Corner, Distribution, Extreme,
     Histogram, Level, MonteCarlo, MonteCarloSummary, Parameter, RequirementYield, Sensitivity,
-    Setting, ToleranceReport, Tolerances, WorstCase, WorstCheck, DEFAULT_TRIALS, MAX_TRIALS,
+    Setting, ToleranceDocument, Tolerances, WorstCase, WorstCheck, DEFAULT_TRIALS, MAX_TRIALS,
 };
 pub use transistor::{
     Currents, Device, Polarity, TransistorData, CJC_BUILT_IN, CJC_GRADING, DEFAULT_BETA_REVERSE,

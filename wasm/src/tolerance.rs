@@ -7,11 +7,11 @@
 //! file's `tolerances` block or the core's defaults, as for `stagewright
 //! check --worst-case --monte-carlo N --seed S` without tolerance options.
 
-use stagewright::{worst_case, worst_checks, MonteCarlo};
+use stagewright::{worst_case, worst_checks, MonteCarlo, ToleranceDocument};
 use wasm_bindgen::prelude::*;
 
 use crate::analysis::{read_design, to_js};
-use crate::js::{core_error, field_error, text, Builder};
+use crate::js::{core_error, field_error, text};
 
 /// The tolerance analysis of one design: the worst case and the
 /// requirements judged at their worst vertex at once, the Monte Carlo
@@ -50,45 +50,29 @@ impl Tolerance {
         let run = MonteCarlo::new(&design.stage, &t, &design.requirements, trials, seed)
             .map_err(|e| core_error(&e))?;
         let worst = worst_case(&design.stage, &t).map_err(|e| core_error(&e))?;
-        let checks = js_sys::Array::new();
-        for w in worst_checks(&design.requirements, &worst) {
-            let c = &w.check;
-            let o = Builder::new();
-            o.set("id", c.id.as_str());
-            o.set("pass", c.pass);
-            o.set("value", c.value);
-            o.set("limit", c.limit);
-            o.set("unit", c.unit);
-            o.set("message", c.message.as_str());
-            o.set("corner", to_js(&w.corner)?);
-            checks.push(&o.into());
-        }
-        let tolerances = Builder::new();
-        tolerances.set("resistor_tolerance", t.resistor_tolerance);
-        tolerances.set("capacitor_tolerance", t.capacitor_tolerance);
-        tolerances.set("supply_tolerance", t.supply_tolerance);
-        tolerances.set("vbe_spread", t.vbe_spread);
-        tolerances.set("ambient_min", t.ambient_min.celsius());
-        tolerances.set("ambient_max", t.ambient_max.celsius());
-        tolerances.set("hfe_min", design.stage.transistor.hfe_min);
-        tolerances.set("hfe_max", design.stage.transistor.hfe_max);
-        let report = Builder::new();
-        report.set("tolerances", tolerances);
-        report.set("worst_case", to_js(&worst)?);
-        report.set("checks", checks);
-        report.set("sensitivity", to_js(&run.sensitivity())?);
-        Ok(Tolerance {
-            run,
-            report: report.into(),
-        })
+        let checks = worst_checks(&design.requirements, &worst);
+        // The document `check --json` writes (its Monte Carlo part comes
+        // from `summary`, with the histograms the page draws).
+        let document = ToleranceDocument {
+            tolerances: t,
+            hfe: (
+                design.stage.transistor.hfe_min,
+                design.stage.transistor.hfe_max,
+            ),
+            worst_case: Some((worst, checks)),
+            sensitivity: run.sensitivity().to_vec(),
+            monte_carlo: None,
+        };
+        let report = to_js(&document)?;
+        Ok(Tolerance { run, report })
     }
 
-    /// `{tolerances, worst_case: {extremes: [{quantity, nominal, min, max,
-    /// min_corner, max_corner}], vertices, inactive_vertices}, checks:
-    /// [{id, pass, value, limit, unit, message, corner}], sensitivity:
-    /// [{quantity, parameter, percent_per_percent}]}` (sensitivity largest
-    /// first; corners as the core serializes them, `{settings: [{parameter,
-    /// level}]}`).
+    /// The tolerance document (`stagewright-tolerance/1`, the shape of
+    /// `check --json`): `{format, tolerances, corners: {result: {nominal,
+    /// min, max, unit, corner: {min, max}}}, worst_case: {pass, vertices,
+    /// inactive_vertices, checks: [{id, pass, value, limit, unit, message,
+    /// corner}]}, sensitivity: [{quantity, parameter, percent_per_percent}],
+    /// monte_carlo: null}`, each vertex as `{"r1": "max", …}`.
     pub fn report(&self) -> JsValue {
         self.report.clone()
     }

@@ -107,7 +107,7 @@ mod tolerance;
 
 pub use design_result::{DesignResult, PartEntry};
 pub use sweep::{SweepRow, SweepTable, SWEEP_FORMAT};
-pub use tolerance::{Entries, ToleranceDocument, TOLERANCE_FORMAT};
+pub use tolerance::{Entries, TOLERANCE_FORMAT};
 
 use crate::analysis::Analysis;
 use crate::decibel::db20;

@@ -17,45 +17,12 @@ use alloc::vec::Vec;
 use serde::ser::{SerializeMap, SerializeStruct};
 use serde::{Serialize, Serializer};
 
-use crate::tolerance::{Corner, MonteCarloSummary, Sensitivity, Tolerances, WorstCase, WorstCheck};
+use crate::tolerance::{Corner, MonteCarloSummary, ToleranceDocument, WorstCase, WorstCheck};
 
 /// The format name and version of a tolerance document.
 pub const TOLERANCE_FORMAT: &str = "stagewright-tolerance/1";
 
-/// The tolerance analysis of one design: the spread, the worst case and its
-/// checks, the sensitivities and the Monte Carlo run, each when it was run.
-#[derive(Debug, Clone)]
-pub struct ToleranceDocument {
-    /// The spread analysed.
-    pub tolerances: Tolerances,
-    /// The gain group, `hfe_min` to `hfe_max`.
-    pub hfe: (f64, f64),
-    /// The worst case and the requirements judged at their worst vertex.
-    pub worst_case: Option<(WorstCase, Vec<WorstCheck>)>,
-    /// The sensitivity table, largest first.
-    pub sensitivity: Vec<Sensitivity>,
-    /// The Monte Carlo summary and the least yield accepted (0 to 1).
-    pub monte_carlo: Option<(MonteCarloSummary, f64)>,
-}
-
 impl ToleranceDocument {
-    /// True when every requirement holds at every vertex (or there is no
-    /// worst case).
-    pub fn worst_case_passed(&self) -> bool {
-        self.worst_case
-            .as_ref()
-            .is_none_or(|(_, c)| c.iter().all(|w| w.check.pass))
-    }
-
-    /// True when the yield is at least the least accepted (or there is no
-    /// Monte Carlo run). The yield is passed/completed: it is compared with
-    /// a margin of a part in 10¹² so that 99.5 % of 1000 trials is 99.5 %.
-    pub fn yield_passed(&self) -> bool {
-        self.monte_carlo
-            .as_ref()
-            .is_none_or(|(m, least)| m.yield_fraction + 1e-12 >= *least)
-    }
-
     /// The document's keys without its `format` (a `check --json` entry).
     pub fn entries(&self) -> Entries<'_> {
         Entries(self)

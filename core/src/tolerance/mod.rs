@@ -174,34 +174,67 @@ const SENSITIVITY_FLOOR: f64 = 1e-6;
 /// point it reaches is of the order of this times the first step, ~10⁻⁵.
 const FAST: f64 = 1e-3;
 
-/// Worst case, sensitivity and Monte Carlo together.
+/// The tolerance analysis of one design: the spread, the worst case and its
+/// checks, the sensitivities and the Monte Carlo run, each when it was run.
 #[derive(Debug, Clone, PartialEq)]
-#[cfg_attr(feature = "serde", derive(serde::Serialize))]
-pub struct ToleranceReport {
-    /// The extremes over the parameter box.
-    pub worst_case: WorstCase,
+pub struct ToleranceDocument {
+    /// The spread analysed.
+    pub tolerances: Tolerances,
+    /// The gain group, `hfe_min` to `hfe_max`.
+    pub hfe: (f64, f64),
+    /// The worst case and the requirements judged at their worst vertex.
+    pub worst_case: Option<(WorstCase, Vec<WorstCheck>)>,
     /// The sensitivity table, largest first.
     pub sensitivity: Vec<Sensitivity>,
-    /// The Monte Carlo summary.
-    pub monte_carlo: MonteCarloSummary,
+    /// The Monte Carlo summary and the least yield accepted (0 to 1).
+    pub monte_carlo: Option<(MonteCarloSummary, f64)>,
 }
 
-/// The whole tolerance analysis of `stage`: worst case, sensitivity, and
-/// `trials` Monte Carlo trials from `seed`, judged against `requirements`.
+impl ToleranceDocument {
+    /// True when every requirement holds at every vertex (or there is no
+    /// worst case).
+    pub fn worst_case_passed(&self) -> bool {
+        self.worst_case
+            .as_ref()
+            .is_none_or(|(_, c)| c.iter().all(|w| w.check.pass))
+    }
+
+    /// True when the yield is at least the least accepted (or there is no
+    /// Monte Carlo run). The yield is passed/completed: it is compared with
+    /// a margin of a part in 10¹² so that 99.5 % of 1000 trials is 99.5 %.
+    pub fn yield_passed(&self) -> bool {
+        self.monte_carlo
+            .as_ref()
+            .is_none_or(|(m, least)| m.yield_fraction + 1e-12 >= *least)
+    }
+}
+
+/// The whole tolerance analysis of `stage`: the worst case with each
+/// requirement at its worst vertex, the sensitivities, and `trials` Monte
+/// Carlo trials from `seed` judged against `requirements`, the yield
+/// against `min_yield` (0 to 1): the document `check --worst-case
+/// --monte-carlo` writes.
+///
+/// # Errors
+/// What [`MonteCarlo::new`] and [`worst_case`] report.
 pub fn tolerance_analysis(
     stage: &Stage,
     tolerances: &Tolerances,
     requirements: &Requirements,
     trials: usize,
     seed: u64,
-) -> Result<ToleranceReport> {
+    min_yield: f64,
+) -> Result<ToleranceDocument> {
     let mut mc = MonteCarlo::new(stage, tolerances, requirements, trials, seed)?;
-    let worst_case = mc.model.worst_case()?;
+    let worst = mc.model.worst_case()?;
+    let checks = worst_checks(requirements, &worst);
     mc.run();
-    Ok(ToleranceReport {
-        worst_case,
+    Ok(ToleranceDocument {
+        tolerances: *tolerances,
+        hfe: (stage.transistor.hfe_min, stage.transistor.hfe_max),
+        worst_case: Some((worst, checks)),
         sensitivity: mc.sensitivity.clone(),
-        monte_carlo: mc.summary(),
+        monte_carlo: Some((mc.summary(), min_yield)),
     })
 }
 
@@ -307,6 +340,35 @@ mod tests {
             },
             transistor: preset("general-purpose-pnp").unwrap(),
         }
+    }
+
+    #[test]
+    fn the_tolerance_analysis_is_its_parts() {
+        // One call gives what the parts give separately (the same seed, so
+        // the same trials): the worst case, its checks, the sensitivities
+        // and the Monte Carlo summary, exactly.
+        let stage = ce_stage();
+        let t = Tolerances::default();
+        let r = Requirements {
+            min_voltage_gain_db: Some(20.0),
+            max_f_low: Some(100.0),
+            ..Requirements::default()
+        };
+        let doc = tolerance_analysis(&stage, &t, &r, 500, 9, 0.99).unwrap();
+        let worst = worst_case(&stage, &t).unwrap();
+        let (w, checks) = doc.worst_case.as_ref().expect("a worst case");
+        assert_eq!(*w, worst);
+        assert_eq!(*checks, worst_checks(&r, &worst));
+        let mut mc = MonteCarlo::new(&stage, &t, &r, 500, 9).unwrap();
+        mc.run();
+        let (summary, least) = doc.monte_carlo.as_ref().expect("a Monte Carlo run");
+        assert_eq!(*summary, mc.summary());
+        assert_eq!(*least, 0.99);
+        assert_eq!(doc.sensitivity, mc.sensitivity().to_vec());
+        assert_eq!(
+            doc.hfe,
+            (stage.transistor.hfe_min, stage.transistor.hfe_max)
+        );
     }
 
     #[test]

@@ -135,23 +135,24 @@ export const withToleranceView = (Base) => class extends Base {
   _renderWorst(r) {
     const api = this._api;
     const f = (v, unit) => (typeof v === "number" && Number.isFinite(v) ? api.format_si(v, unit) : "—");
+    // A vertex as the engine writes it, {"r1": "max", "hfe": "min", …}.
     const corner = (c) => {
       if (!c) return "—";
-      const s = c.settings.filter((x) => x.level !== "nominal").map((x) => (x.level === "max" ? "+" : "−") + x.parameter);
+      const s = Object.entries(c).filter(([, level]) => level !== "nominal").map(([p, level]) => (level === "max" ? "+" : "−") + p);
       return s.length ? s.join(" ") : "nominal";
     };
     const w = r.worst_case;
     const worst = h("table", { class: "numbers tol-worst" },
       h("caption", null, `Worst case over ${w.vertices} vertices` + (w.inactive_vertices ? ` (${w.inactive_vertices} not in the active region: vertex extremes only)` : "")),
       h("thead", null, h("tr", null, ...["result", "nominal", "min", "max", "min at", "max at"].map((c) => h("th", { scope: "col" }, c)))),
-      h("tbody", null, ...w.extremes.map((e) => h("tr", null, h("th", { scope: "row" }, e.quantity.replace(/_/g, " ")),
-        h("td", null, f(e.nominal, MC_UNITS[e.quantity])), h("td", null, f(e.min, MC_UNITS[e.quantity])), h("td", null, f(e.max, MC_UNITS[e.quantity])),
-        h("td", { class: "corner" }, corner(e.min_corner)), h("td", { class: "corner" }, corner(e.max_corner))))));
-    const checks = r.checks.length
+      h("tbody", null, ...Object.entries(r.corners).map(([q, e]) => h("tr", null, h("th", { scope: "row" }, q.replace(/_/g, " ")),
+        h("td", null, f(e.nominal, e.unit)), h("td", null, f(e.min, e.unit)), h("td", null, f(e.max, e.unit)),
+        h("td", { class: "corner" }, corner(e.corner.min)), h("td", { class: "corner" }, corner(e.corner.max))))));
+    const checks = w.checks.length
       ? h("table", { class: "numbers tol-checks" },
         h("caption", null, "Requirements at their worst vertex (+ at max, − at min, others nominal)"),
         h("thead", null, h("tr", null, ...["", "requirement", "value", "limit", "at"].map((c) => h("th", { scope: "col" }, c)))),
-        h("tbody", null, ...r.checks.map((c) => h("tr", { class: c.pass ? "pass" : "fail" },
+        h("tbody", null, ...w.checks.map((c) => h("tr", { class: c.pass ? "pass" : "fail" },
           h("td", null, c.pass ? "pass" : "FAIL"), h("th", { scope: "row" }, c.id),
           h("td", null, f(c.value, c.unit)), h("td", null, f(c.limit, c.unit)), h("td", { class: "corner" }, corner(c.corner))))))
       : h("p", { class: "hint" }, "No requirements set: nothing to judge at the vertices.");
