@@ -116,9 +116,12 @@
 //!
 //! # Writing
 //! [`Design::to_document`] and [`Design::to_json`] write a design back as a
-//! version 1 document: numbers in SI base units, the preset kept with only
-//! the values that differ from it, defaults left out (a `tolerances` block,
-//! when the design has one, is written in full).
+//! version 1 document: every value with a unit that takes SI prefixes as
+//! text in engineering notation with exactly the digits that read back to
+//! the same number (`"4.7 kΩ"`, `"3.3 µF"`, `"250 MHz"`: [`Typed::exact`]),
+//! ratios, decibels, temperatures and shares as plain numbers; the preset
+//! kept with only the values that differ from it, defaults left out (a
+//! `tolerances` block, when the design has one, is written in full).
 
 use alloc::borrow::ToOwned;
 use alloc::string::String;
@@ -357,39 +360,36 @@ impl Design {
         let s = &self.stage;
         let p = &s.parts;
         let num = |x: f64| Some(Typed::Number(x));
-        let if_some = |x: Option<f64>| x.map(Typed::Number);
-        let if_nonzero = |x: f64| if x != 0.0 { num(x) } else { None };
+        // Parts in the notation engineers read, exact: "4.7 kΩ", "2.2 µF".
+        let ohms = |x: f64| Some(Typed::exact(x, "Ω"));
+        let ohms_if = |x: Option<f64>| x.map(|x| Typed::exact(x, "Ω"));
+        let ohms_nonzero = |x: f64| if x != 0.0 { ohms(x) } else { None };
+        let farads = |x: Option<f64>| x.map(|x| Typed::exact(x, "F"));
         let ambient = file_celsius(s.ambient);
         let parts = PartsDocument {
-            r1: if_some(p.r1),
-            r2: if_some(p.r2),
-            rc: if_nonzero(p.rc),
-            re: if_nonzero(p.re),
-            re_bypassed: if_nonzero(p.re_bypassed),
-            rs: if_nonzero(p.rs),
-            rl: num(p.rl),
-            c_in: if_some(p.c_in),
-            c_out: if_some(p.c_out),
-            c_emitter: if_some(p.c_emitter),
-            c_base: if_some(p.c_base),
+            r1: ohms_if(p.r1),
+            r2: ohms_if(p.r2),
+            rc: ohms_nonzero(p.rc),
+            re: ohms_nonzero(p.re),
+            re_bypassed: ohms_nonzero(p.re_bypassed),
+            rs: ohms_nonzero(p.rs),
+            rl: ohms(p.rl),
+            c_in: farads(p.c_in),
+            c_out: farads(p.c_out),
+            c_emitter: farads(p.c_emitter),
+            c_base: farads(p.c_base),
             resistor_rating: if p.resistor_rating != DEFAULT_RESISTOR_RATING {
-                num(p.resistor_rating)
+                Some(Typed::exact(p.resistor_rating, "W"))
             } else {
                 None
             },
         };
         let r = &self.requirements;
-        let requirements = RequirementsDocument {
-            min_voltage_gain_db: if_some(r.min_voltage_gain_db),
-            max_voltage_gain_db: if_some(r.max_voltage_gain_db),
-            min_input_impedance: if_some(r.min_input_impedance),
-            max_output_impedance: if_some(r.max_output_impedance),
-            min_swing: if_some(r.min_swing),
-            max_f_low: if_some(r.max_f_low),
-            min_f_high: if_some(r.min_f_high),
-            max_supply_current: if_some(r.max_supply_current),
-            max_junction_temperature: if_some(r.max_junction_temperature),
-        };
+        // Each requirement in its unit ("10 kΩ", "30 Hz"; dB and °C as numbers).
+        let mut requirements = RequirementsDocument::default();
+        for (req, limit) in r.limits() {
+            requirements.set(req.key, Some(Typed::exact(limit, req.unit)));
+        }
         let text = |t: &str| {
             if t.is_empty() {
                 None
@@ -402,7 +402,7 @@ impl Design {
             title: text(&self.title),
             notes: text(&self.notes),
             stage: Some(s.kind.name().to_owned()),
-            supply: num(s.supply),
+            supply: Some(Typed::exact(s.supply, "V")),
             ambient: if ambient != DEFAULT_AMBIENT_CELSIUS {
                 num(ambient)
             } else {
@@ -419,7 +419,7 @@ impl Design {
                 resistor_tolerance: num(t.resistor_tolerance),
                 capacitor_tolerance: num(t.capacitor_tolerance),
                 supply_tolerance: num(t.supply_tolerance),
-                vbe_spread: num(t.vbe_spread),
+                vbe_spread: Some(Typed::exact(t.vbe_spread, "V")),
                 ambient_min: num(file_celsius(t.ambient_min)),
                 ambient_max: num(file_celsius(t.ambient_max)),
             }),

@@ -92,13 +92,49 @@ pub fn format_value(value: f64, unit: &str, digits: usize) -> String {
     }
 }
 
+/// Writes `value` in `unit` with exactly the digits needed to read it back
+/// as the same `f64` (the shortest decimal that rounds to it), in the
+/// engineering notation of [`format_value`]: `4.7 kΩ`, `2.2 µF`,
+/// `32.1807 kΩ`, `0.25 W`, `25 °C`.
+///
+/// This is how a design is written to a file: engineers read `4.7 µF`
+/// where `0.0000047` hides the value, and the value parser
+/// ([`crate::parse_value`]) folds the prefix into the decimal exponent, so
+/// the text reads back bit for bit. Non-finite values are written as
+/// [`format_value`] writes them (a design never holds one).
+pub fn format_exact(value: f64, unit: &str) -> String {
+    if !value.is_finite() || value == 0.0 {
+        return format_value(value, unit, 3);
+    }
+    let sign = if value < 0.0 { "-" } else { "" };
+    // The shortest round-trip digits: `{:e}` gives them as d.ddde±x.
+    let text = format!("{:e}", value.abs());
+    let (mantissa, exponent) = text.split_once('e').unwrap_or((&text, "0"));
+    let digits: String = mantissa.chars().filter(char::is_ascii_digit).collect();
+    let exponent: i32 = exponent.parse().unwrap_or(0);
+    if takes_prefix(unit) {
+        let engineering = exponent.div_euclid(3) * 3;
+        if let Some(&(_, prefix)) = PREFIXES.iter().find(|(p, _)| *p == engineering) {
+            let number = place_point(&digits, exponent - engineering + 1);
+            return attach_unit(&[sign, &number].concat(), prefix, unit);
+        }
+        return attach_unit(&[sign, &scientific(&digits, exponent)].concat(), "", unit);
+    }
+    let number = if PLAIN_EXPONENTS.contains(&exponent) {
+        place_point(&digits, exponent + 1)
+    } else {
+        scientific(&digits, exponent)
+    };
+    attach_unit(&[sign, &number].concat(), "", unit)
+}
+
 /// Whether `unit` is written with SI prefixes.
 ///
 /// Relative units (ratios, percent, decibels) and the degree units do not
 /// take prefixes: the SI Brochure does not use prefixes with °C or with
 /// the degree of angle, and a gain in dB or % is not scaled by powers of
 /// 1000. Thermal resistance in K/W is conventionally written unscaled too.
-fn takes_prefix(unit: &str) -> bool {
+pub(crate) fn takes_prefix(unit: &str) -> bool {
     !(unit.is_empty()
         || unit.starts_with("dB")
         || unit.starts_with('\u{b0}')
@@ -327,6 +363,35 @@ mod tests {
             assert!(!text.contains('e'), "{text}");
             reads_back(&text, value, 5e-3);
             value *= 1.37;
+        }
+    }
+
+    #[test]
+    fn exact_values_read_back_bit_for_bit() {
+        for (value, unit, want) in [
+            (4.7e3, "Ω", "4.7 kΩ"),
+            (2.2e-6, "F", "2.2 µF"),
+            (4.7e-6, "F", "4.7 µF"),
+            (120e3, "Ω", "120 kΩ"),
+            (32180.7, "Ω", "32.1807 kΩ"),
+            (0.25, "W", "250 mW"),
+            (1e6, "Ω", "1 MΩ"),
+            (25.0, "°C", "25 °C"),
+            (0.1 + 0.2, "V", "300.00000000000004 mV"),
+        ] {
+            let text = format_exact(value, unit);
+            assert_eq!(text, want);
+            let back = crate::value::parse_value_field("x", &text, unit).expect("reads back");
+            assert_eq!(back.to_bits(), value.to_bits(), "{text}");
+        }
+        // Every E96 value at every decade reads back exactly.
+        for &m in crate::eseries::ESeries::E96.values() {
+            for e in -15..=12 {
+                let v = m * libm::pow(10.0, e as f64);
+                let back =
+                    crate::value::parse_value_field("x", &format_exact(v, "Ω"), "Ω").unwrap();
+                assert_eq!(back.to_bits(), v.to_bits(), "{v}");
+            }
         }
     }
 }

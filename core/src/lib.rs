@@ -127,7 +127,7 @@ pub use document::{
 pub use error::{Error, ErrorKind, Result, MAX_ECHO};
 pub use eseries::{ESeries, SeriesLookup};
 pub use figures::{Figure, Quantity, FIGURES};
-pub use format::{format_si, format_value};
+pub use format::{format_exact, format_si, format_value};
 pub use hybrid_pi::{SmallSignal, OPEN_RESISTANCE};
 pub use load_line::{load_lines, Characteristic, LoadLines};
 pub use midband::Midband;

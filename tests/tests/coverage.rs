@@ -282,6 +282,10 @@ const COVERAGE: &[(&str, Covered)] = &[
         Reference("practice", "engineering_notation_follows_the_si_brochure"),
     ),
     (
+        "format_exact",
+        Unit("format", "exact_values_read_back_bit_for_bit"),
+    ),
+    (
         "parse_value",
         Reference("eseries", "rkm_codes_read_as_the_standard_says"),
     ),
@@ -551,6 +555,7 @@ const ENGINE_RS: &str = include_str!("../../core/tests/engine.rs");
 
 /// The core modules whose unit tests cover exported items.
 const CORE_MODULES: &[(&str, &str)] = &[
+    ("format", include_str!("../../core/src/format.rs")),
     ("synthesis", include_str!("../../core/src/synthesis/mod.rs")),
     ("tolerance", include_str!("../../core/src/tolerance/mod.rs")),
 ];

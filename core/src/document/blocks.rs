@@ -223,40 +223,42 @@ pub(crate) fn transistor_document(
         (b.early_voltage.is_none() || t.early_voltage.is_some())
             && (b.cob_vcb.is_none() || t.cob_vcb.is_some())
     });
-    let differs = |x: f64, f: fn(&TransistorData) -> f64| match &base {
+    // A value that differs from the preset's, in its unit ("250 MHz").
+    let differs = |x: f64, unit: &str, f: fn(&TransistorData) -> f64| match &base {
         Some((_, b)) if f(b) == x => None,
-        _ => Some(Typed::Number(x)),
+        _ => Some(Typed::exact(x, unit)),
     };
-    let differs_opt = |x: Option<f64>, f: fn(&TransistorData) -> Option<f64>| match (&base, x) {
-        (_, None) => None,
-        (Some((_, b)), Some(v)) if f(b) == Some(v) => None,
-        (_, Some(v)) => Some(Typed::Number(v)),
-    };
+    let differs_opt =
+        |x: Option<f64>, unit: &str, f: fn(&TransistorData) -> Option<f64>| match (&base, x) {
+            (_, None) => None,
+            (Some((_, b)), Some(v)) if f(b) == Some(v) => None,
+            (_, Some(v)) => Some(Typed::exact(v, unit)),
+        };
     TransistorDocument {
         preset: base.as_ref().map(|(n, _)| (*n).to_owned()),
         polarity: match &base {
             Some((_, b)) if b.polarity == t.polarity => None,
             _ => Some(t.polarity.name().to_owned()),
         },
-        hfe: differs(t.hfe, |b| b.hfe),
-        hfe_min: differs(t.hfe_min, |b| b.hfe_min),
-        hfe_max: differs(t.hfe_max, |b| b.hfe_max),
-        vbe: differs(t.vbe, |b| b.vbe),
-        vbe_at_ic: differs(t.vbe_at_ic, |b| b.vbe_at_ic),
-        early_voltage: differs_opt(t.early_voltage, |b| b.early_voltage),
-        ft: differs(t.ft, |b| b.ft),
-        cob: differs(t.cob, |b| b.cob),
-        cob_vcb: differs_opt(t.cob_vcb, |b| b.cob_vcb),
+        hfe: differs(t.hfe, "", |b| b.hfe),
+        hfe_min: differs(t.hfe_min, "", |b| b.hfe_min),
+        hfe_max: differs(t.hfe_max, "", |b| b.hfe_max),
+        vbe: differs(t.vbe, "V", |b| b.vbe),
+        vbe_at_ic: differs(t.vbe_at_ic, "A", |b| b.vbe_at_ic),
+        early_voltage: differs_opt(t.early_voltage, "V", |b| b.early_voltage),
+        ft: differs(t.ft, "Hz", |b| b.ft),
+        cob: differs(t.cob, "F", |b| b.cob),
+        cob_vcb: differs_opt(t.cob_vcb, "V", |b| b.cob_vcb),
         rbb: match &base {
             Some((_, b)) if b.rbb == t.rbb => None,
             None if t.rbb == 0.0 => None,
-            _ => Some(Typed::Number(t.rbb)),
+            _ => Some(Typed::exact(t.rbb, "Ω")),
         },
-        vce_sat: differs(t.vce_sat, |b| b.vce_sat),
-        vceo_max: differs(t.vceo_max, |b| b.vceo_max),
-        ic_max: differs(t.ic_max, |b| b.ic_max),
-        ptot_max: differs(t.ptot_max, |b| b.ptot_max),
-        rth_ja: differs(t.rth_ja, |b| b.rth_ja),
-        tj_max: differs(file_celsius(t.tj_max), |b| file_celsius(b.tj_max)),
+        vce_sat: differs(t.vce_sat, "V", |b| b.vce_sat),
+        vceo_max: differs(t.vceo_max, "V", |b| b.vceo_max),
+        ic_max: differs(t.ic_max, "A", |b| b.ic_max),
+        ptot_max: differs(t.ptot_max, "W", |b| b.ptot_max),
+        rth_ja: differs(t.rth_ja, "K/W", |b| b.rth_ja),
+        tj_max: differs(file_celsius(t.tj_max), "°C", |b| file_celsius(b.tj_max)),
     }
 }

@@ -52,6 +52,19 @@ macro_rules! block {
                 }
             }
 
+            /// Sets the value of the key `key` of this block; false for a
+            /// key the block does not have.
+            #[allow(dead_code)]
+            pub(crate) fn set(&mut self, key: &str, value: Option<$crate::document::Typed>) -> bool {
+                match key {
+                    $(stringify!($v) => {
+                        self.$v = value;
+                        true
+                    })*
+                    _ => false,
+                }
+            }
+
             pub(crate) fn read(
                 value: &::serde_json::Value,
                 schema: &$crate::document::Schema,

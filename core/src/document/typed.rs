@@ -40,6 +40,20 @@ impl Typed {
     }
 }
 
+impl Typed {
+    /// A value as a file writes it: text in engineering notation that
+    /// reads back to the same `f64` (`"4.7 kΩ"`, `"2.2 µF"`,
+    /// [`crate::format_exact`]) for a unit that takes SI prefixes, a plain
+    /// number for the rest (ratios, dB, °C, K/W, shares).
+    pub fn exact(value: f64, unit: &str) -> Typed {
+        if crate::format::takes_prefix(unit) && value.is_finite() {
+            Typed::Text(crate::format::format_exact(value, unit))
+        } else {
+            Typed::Number(value)
+        }
+    }
+}
+
 impl From<f64> for Typed {
     fn from(x: f64) -> Typed {
         Typed::Number(x)
