@@ -49,15 +49,30 @@ const OHM: &[Spelling] = &[
 
 /// The unit symbols accepted by [`parse_value`], longest match first where
 /// one spelling ends another (`ohms` before `s`).
+///
+/// The volt, ampere, watt and hertz are read in any case (`12v`, `2ma`,
+/// `250mw`, `1khz`): no SI prefix or other unit is spelled with those
+/// letters, so the case cannot change the meaning. F, H and s keep their
+/// case: `f` is femto, `h` is not the henry and `S` is the siemens.
 const COMMON_UNITS: &[&[Spelling]] = &[
     OHM,
-    &[("Hz", false)],
+    &[("Hz", true)],
     &[("F", false)],
     &[("H", false)],
-    &[("V", false)],
-    &[("A", false)],
-    &[("W", false)],
+    &[("V", true)],
+    &[("A", true)],
+    &[("W", true)],
     &[("s", false)],
+];
+
+/// Spellings of the degree Celsius for a temperature: `°C`, the sign
+/// U+2103, `degC`, and a bare `C` in either case (`25C`; no prefix is
+/// written C, and a temperature takes no prefix).
+const CELSIUS: &[Spelling] = &[
+    ("\u{b0}C", false),
+    ("\u{2103}", false),
+    ("degc", true),
+    ("c", true),
 ];
 
 /// Reads a value with an optional SI prefix, RKM code and unit symbol.
@@ -144,6 +159,7 @@ fn expected_for(unit: &str) -> &'static str {
 fn spellings_for(unit: &str) -> Option<&'static [Spelling]> {
     match unit {
         "\u{3a9}" | "\u{2126}" | "ohm" => Some(OHM),
+        "\u{b0}C" => Some(CELSIUS),
         _ => COMMON_UNITS
             .iter()
             .copied()
@@ -626,5 +642,36 @@ mod tests {
         // Overflow is reported, never turned into infinity.
         assert!(parse_value("1e308k").is_err());
         assert!(parse_value(&"1".repeat(10_000)).is_err());
+    }
+
+    #[test]
+    fn unambiguous_unit_symbols_read_in_either_case() {
+        // (text, unit, value): V, A, W and Hz in any case; °C also as C.
+        for (text, unit, want) in [
+            ("12v", "V", 12.0),
+            ("12 V", "V", 12.0),
+            ("650mv", "V", 0.65),
+            ("2ma", "A", 2e-3),
+            ("250mW", "W", 0.25),
+            ("1khz", "Hz", 1e3),
+            ("1 KHZ", "Hz", 1e3),
+            ("25C", "\u{b0}C", 25.0),
+            ("25 c", "\u{b0}C", 25.0),
+            ("-40 \u{b0}C", "\u{b0}C", -40.0),
+            ("85 degC", "\u{b0}C", 85.0),
+            ("2.2f", "F", 2.2e-15),
+        ] {
+            let got = parse_value_field("x", text, unit).unwrap_or_else(|e| panic!("{text}: {e}"));
+            assert!(
+                (got - want).abs() <= want.abs() * 1e-15,
+                "{text}: {got} vs {want}"
+            );
+        }
+        // Case still matters where it changes the meaning: 1 mF is not 1 MF.
+        assert_eq!(parse_value_field("c", "1mF", "F").unwrap(), 1e-3);
+        assert!(
+            parse_value_field("c", "1mf", "F").is_err(),
+            "f after m is no farad"
+        );
     }
 }

@@ -51,7 +51,13 @@ impl Report {
         head(&mut o, "Small signal", "");
         figure_row(&mut o, &SS_GM, &format_si(ss.gm, SS_GM.unit), "");
         figure_row(&mut o, &SS_R_PI, &format_si(ss.r_pi, SS_R_PI.unit), "");
-        figure_row(&mut o, &SS_R_O, &format_si(ss.r_o, SS_R_O.unit), "");
+        // An open ro (no Early effect in the data) is infinite, not 10¹⁵ Ω.
+        let r_o = if ss.r_o >= crate::hybrid_pi::OPEN_RESISTANCE {
+            "∞ (no Early effect)".to_owned()
+        } else {
+            format_si(ss.r_o, SS_R_O.unit)
+        };
+        figure_row(&mut o, &SS_R_O, &r_o, "");
         figure_row(&mut o, &SS_C_PI, &format_si(ss.c_pi, SS_C_PI.unit), "");
         figure_row(&mut o, &SS_C_MU, &format_si(ss.c_mu, SS_C_MU.unit), "");
         figure_row(&mut o, &SS_BETA0, &format_si(ss.beta0, SS_BETA0.unit), "");
