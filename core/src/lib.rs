@@ -149,9 +149,10 @@ pub use response::{log_frequencies, Bandwidth, Edge, Response, SEARCH_FROM, SEAR
 pub use spec_file::{
     BiasDocument, BiasPointDocument, PinnedPartsDocument, SeriesDocument, SpecDocument, SpecFile,
 };
+pub use stage::unusual;
 pub use stage::{
     Parts, Stage, StageKind, DEFAULT_RESISTOR_RATING, MAX_CAPACITANCE, MAX_RESISTANCE, MAX_SUPPLY,
-    MIN_CAPACITANCE, MIN_RESISTANCE, MIN_SUPPLY,
+    MIN_CAPACITANCE, MIN_RESISTANCE, MIN_SUPPLY, USUAL_RANGES,
 };
 pub use swing::Swing;
 pub use synthesis::{

@@ -149,6 +149,45 @@ pub const MIN_CAPACITANCE: f64 = 1e-15;
 /// Range of a resistor's power rating, W.
 pub const RESISTOR_RATING_RANGE: (f64, f64) = (1e-3, 1000.0);
 
+/// The values a part or a condition usually takes, by design-file key:
+/// (key, lowest, highest, unit, what it is). A value outside is allowed
+/// (the bounds of [`Stage::validate`] decide that) but worth a second look:
+/// `1m` typed for a resistor is 1 mΩ, `2.2` for a capacitor is 2.2 F.
+/// Common practice for discrete one-transistor stages.
+pub const USUAL_RANGES: &[(&str, f64, f64, &str, &str)] = &[
+    ("r1", 10.0, 100e6, "Ω", "a bias resistor"),
+    ("r2", 10.0, 100e6, "Ω", "a bias resistor"),
+    ("rc", 1.0, 10e6, "Ω", "a collector resistor"),
+    ("re", 0.1, 1e6, "Ω", "an emitter resistor"),
+    ("re_bypassed", 0.1, 1e6, "Ω", "an emitter resistor"),
+    ("rs", 0.1, 10e6, "Ω", "a source resistance"),
+    ("rl", 1.0, 100e6, "Ω", "a load resistance"),
+    ("c_in", 1e-12, 0.1, "F", "a coupling capacitor"),
+    ("c_out", 1e-12, 0.1, "F", "a coupling capacitor"),
+    ("c_emitter", 1e-12, 0.1, "F", "a bypass capacitor"),
+    ("c_base", 1e-12, 0.1, "F", "a bypass capacitor"),
+    ("resistor_rating", 0.01, 100.0, "W", "a resistor rating"),
+    ("supply", 1.0, 400.0, "V", "a supply"),
+    ("ambient", -55.0, 125.0, "°C", "an ambient temperature"),
+];
+
+/// A warning when `value` of the part or condition `key` (a design-file
+/// key: `rc`, `c_in`, `supply`) lies outside its [`USUAL_RANGES`], else
+/// `None`: "1 mΩ is unusual for a collector resistor (usually 1 Ω to
+/// 10 MΩ)". A key without a usual range, and a zero, get none.
+pub fn unusual(key: &str, value: f64) -> Option<alloc::string::String> {
+    let &(_, lo, hi, unit, what) = USUAL_RANGES.iter().find(|r| r.0 == key)?;
+    if value == 0.0 || !value.is_finite() || (lo..=hi).contains(&value) {
+        return None;
+    }
+    Some(alloc::format!(
+        "{} is unusual for {what} (usually {} to {})",
+        format_si(value, unit),
+        format_si(lo, unit),
+        format_si(hi, unit)
+    ))
+}
+
 fn not_applicable(field: &str, stage: StageKind, reason: &'static str) -> Error {
     Error::new(
         field,
@@ -392,5 +431,29 @@ impl Stage {
     pub fn bias_resistance(&self) -> f64 {
         let g = self.parts.r1.map_or(0.0, |r| 1.0 / r) + self.parts.r2.map_or(0.0, |r| 1.0 / r);
         1.0 / g
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn values_far_from_usual_are_flagged() {
+        // The two slips the page must catch (a resistor typed 1m, a
+        // capacitor typed 2.2), and values inside their range pass.
+        let m = unusual("rc", 1e-3).expect("1 mΩ collector resistor");
+        assert!(
+            m.starts_with("1 mΩ is unusual for a collector resistor"),
+            "{m}"
+        );
+        assert!(unusual("c_in", 2.2).expect("2.2 F").contains("2.2 F"));
+        assert_eq!(unusual("rc", 4.7e3), None);
+        assert_eq!(unusual("c_in", 1e-6), None);
+        assert_eq!(unusual("rs", 0.0), None, "a short is no slip");
+        assert_eq!(unusual("hfe", 1e9), None, "no usual range for hfe here");
+        for (key, lo, hi, _, _) in USUAL_RANGES {
+            assert!(lo < hi, "{key}");
+        }
     }
 }

@@ -419,6 +419,14 @@ const COVERAGE: &[(&str, Covered)] = &[
         Api("limits_part_and_device_bounds_name_the_field"),
     ),
     (
+        "unusual",
+        Unit("stage", "values_far_from_usual_are_flagged"),
+    ),
+    (
+        "USUAL_RANGES",
+        Unit("stage", "values_far_from_usual_are_flagged"),
+    ),
+    (
         "MIN_RESISTANCE",
         Api("limits_part_and_device_bounds_name_the_field"),
     ),
@@ -555,6 +563,7 @@ const ENGINE_RS: &str = include_str!("../../core/tests/engine.rs");
 
 /// The core modules whose unit tests cover exported items.
 const CORE_MODULES: &[(&str, &str)] = &[
+    ("stage", include_str!("../../core/src/stage.rs")),
     ("format", include_str!("../../core/src/format.rs")),
     ("synthesis", include_str!("../../core/src/synthesis/mod.rs")),
     ("tolerance", include_str!("../../core/src/tolerance/mod.rs")),
