@@ -33,13 +33,18 @@ const FLAGS = [
 ];
 
 /** Starts Chromium with a new profile. Returns {context, requests, close}.
- * `requests` lists every request URL any page of the context made. */
+ * `requests` lists every request URL any page of the context made. Every
+ * host name resolves to nothing; `loopback: true` lets 127.0.0.1 through,
+ * for a test that serves pages from a server of its own on this machine. */
 export async function launch(options = {}) {
+  const args = options.loopback
+    ? FLAGS.map((f) => (f.startsWith("--host-resolver-rules=") ? `${f}, EXCLUDE 127.0.0.1` : f))
+    : FLAGS;
   const profile = mkdtempSync(path.join(os.tmpdir(), "stagewright-chromium-"));
   const context = await chromium.launchPersistentContext(profile, {
     executablePath: CHROMIUM,
     headless: true,
-    args: FLAGS,
+    args,
     viewport: options.viewport || { width: 1400, height: 1000 },
     deviceScaleFactor: options.deviceScaleFactor || 1,
     colorScheme: options.colorScheme || "light",
