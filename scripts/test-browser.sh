@@ -10,6 +10,11 @@
 # `stagewright` command (the tests compare the page's report with its
 # `analyze --json` for every example design), and runs the tests. Then runs
 # the timing script once and prints its figures (it never fails the run).
+# sites.test.mjs builds small MkDocs (Material theme) and Sphinx (furo)
+# sites with the generators from PyPI, pinned in
+# tests/browser/sites/requirements.txt and installed into their own
+# virtual environment, target/sites-venv, whose bin folder the test reads
+# from STAGEWRIGHT_SITES_PY.
 # Screenshots land in tests/browser/artifacts/ (not committed).
 set -euo pipefail
 
@@ -32,6 +37,20 @@ fi
 
 echo "==> building the native stagewright command (reference reports)"
 cargo build --release -p stagewright-cli
+
+# The documentation site generators, made again only when the environment
+# is missing or the requirements changed: a copy of the file that made it
+# is kept inside it, written once the install has succeeded.
+SITES_VENV="$ROOT/target/sites-venv"
+SITES_REQ="$ROOT/tests/browser/sites/requirements.txt"
+if [ ! -x "$SITES_VENV/bin/python" ] || ! cmp -s "$SITES_REQ" "$SITES_VENV/requirements.txt"; then
+  echo "==> installing the documentation site generators (tests/browser/sites/requirements.txt)"
+  rm -rf "$SITES_VENV"
+  python3 -m venv "$SITES_VENV"
+  "$SITES_VENV/bin/python" -m pip install --quiet --disable-pip-version-check -r "$SITES_REQ"
+  cp "$SITES_REQ" "$SITES_VENV/requirements.txt"
+fi
+export STAGEWRIGHT_SITES_PY="$SITES_VENV/bin"
 
 cd "$ROOT/tests/browser"
 echo "==> installing test dependencies"
