@@ -1,26 +1,22 @@
 #!/usr/bin/env bash
-# Builds the web deliverables, both every time:
-#   dist/stagewright.html           the calculator: self-contained page, opens
-#                                   from file:// offline (budget 160 KB gzip)
-#   dist/stagewright.js             embeddable classic script defining
-#                                   <stagewright-calc>
-#   dist/stagewright-designer.html  the offline designer: the calculator plus
-#                                   the "from requirements" and tolerance
-#                                   views (engine feature `extras`, the views
-#                                   of www/src/views/; budget 200 KB gzip)
-#   dist/stagewright-designer.js    the same element with those views
+# Builds the web deliverable, one element with every view:
+#   dist/stagewright.html  the calculator: self-contained page, opens from
+#                          file:// offline (budget 250 KB gzip, 800 KB raw)
+#   dist/stagewright.js    embeddable classic script defining
+#                          <stagewright-calc>
+# Both carry every view: the calculator, "from requirements" and
+# tolerances (www/src/views/), built only when a view is first opened.
 #
 # Tools: rustup + cargo + node (>= 18) + npm. Steps: add the wasm target if
 # missing; install the wasm-bindgen CLI of exactly the version in Cargo.lock
-# if the one on PATH differs; install esbuild and lzma1 (npm,
-# www/package-lock.json) if missing; `cargo build` the wasm crate with
-# a size-tuned release profile; `wasm-bindgen --target no-modules`; then
-# `node www/build.mjs` bundles the modules of www/src/ with esbuild and
-# inlines everything, prints the size report (raw and gzip of the wasm and
-# of both files) and fails when the page is over its budget (calculator:
-# 400 KB raw, 160 KB gzip; designer: 400 KB raw, 200 KB gzip). Steps 4 to 6
-# run once per deliverable, in the same target directory: only the wasm
-# crate is rebuilt the second time.
+# if the one on PATH differs; install esbuild (npm, www/package-lock.json)
+# if missing; `cargo build` the wasm crate with a size-tuned release
+# profile; `wasm-bindgen --target no-modules`; then `node www/build.mjs`
+# bundles the modules of www/src/ with esbuild and inlines everything
+# (the wasm gzip-compressed, as base64; the page unpacks it with the
+# browser's own DecompressionStream), prints the size report (raw and gzip
+# of the wasm and of both files) and fails when the page is over its
+# budget.
 #
 # wasm-opt is never run: the Debian binaryen package produces modules that
 # fail at start-up. Nothing here calls it, and wasm-pack (which would) is
@@ -71,50 +67,39 @@ if [ "$HAVE_WB" != "$WB_VERSION" ]; then
   cargo install wasm-bindgen-cli --version "$WB_VERSION"
 fi
 
-# 3. The packers (npm, www/package-lock.json): esbuild bundles and minifies
-# the modules of www/src/, lzma1 compresses the inlined wasm (its decoder
-# goes into the page). Both are needed to keep the page within its budget.
-if [ ! -d www/node_modules/esbuild ] || [ ! -d www/node_modules/lzma1 ]; then
-  say "installing esbuild and lzma1 (www/package-lock.json)"
+# 3. The bundler (npm, www/package-lock.json): esbuild bundles and
+# minifies the modules of www/src/.
+if [ ! -d www/node_modules/esbuild ]; then
+  say "installing esbuild (www/package-lock.json)"
   (cd www && npm ci --no-audit --no-fund)
 fi
 
-# 4.–6., once per deliverable: NAME, then the cargo features and the flag
-# for www/build.mjs.
-build_one() {
-  local name="$1" features=("${@:2}") bindgen_out
-  bindgen_out="$TARGET_DIR/bindgen-$name"
-  # 4. The wasm module, tuned for size. The root profile is shared with the
-  # native builds, so the size settings come in through the environment.
-  say "building stagewright-wasm for $TARGET (${name})"
-  CARGO_PROFILE_RELEASE_OPT_LEVEL=z \
-  CARGO_PROFILE_RELEASE_LTO=true \
-  CARGO_PROFILE_RELEASE_CODEGEN_UNITS=1 \
-  CARGO_PROFILE_RELEASE_PANIC=abort \
-  CARGO_PROFILE_RELEASE_DEBUG=false \
-  CARGO_PROFILE_RELEASE_INCREMENTAL=false \
-    cargo build -p stagewright-wasm "${features[@]}" --release --target "$TARGET" --target-dir "$TARGET_DIR"
+# 4. The wasm module, tuned for size. The root profile is shared with the
+# native builds, so the size settings come in through the environment.
+BINDGEN_OUT="$TARGET_DIR/bindgen"
+say "building stagewright-wasm for $TARGET"
+CARGO_PROFILE_RELEASE_OPT_LEVEL=z \
+CARGO_PROFILE_RELEASE_LTO=true \
+CARGO_PROFILE_RELEASE_CODEGEN_UNITS=1 \
+CARGO_PROFILE_RELEASE_PANIC=abort \
+CARGO_PROFILE_RELEASE_DEBUG=false \
+CARGO_PROFILE_RELEASE_INCREMENTAL=false \
+  cargo build -p stagewright-wasm --release --target "$TARGET" --target-dir "$TARGET_DIR"
 
-  # 5. JavaScript glue for a classic script (no ES modules: file:// pages
-  # cannot load modules or fetch the wasm).
-  say "wasm-bindgen $WB_VERSION (no-modules, ${name})"
-  rm -rf "$bindgen_out"
-  wasm-bindgen "$TARGET_DIR/$TARGET/release/stagewright_wasm.wasm" \
-    --out-dir "$bindgen_out" \
-    --target no-modules \
-    --no-typescript \
-    --omit-default-module-path \
-    --remove-name-section \
-    --remove-producers-section
+# 5. JavaScript glue for a classic script (no ES modules: file:// pages
+# cannot load modules or fetch the wasm).
+say "wasm-bindgen $WB_VERSION (no-modules)"
+rm -rf "$BINDGEN_OUT"
+wasm-bindgen "$TARGET_DIR/$TARGET/release/stagewright_wasm.wasm" \
+  --out-dir "$BINDGEN_OUT" \
+  --target no-modules \
+  --no-typescript \
+  --omit-default-module-path \
+  --remove-name-section \
+  --remove-producers-section
 
-  # 6. One page and one script, and the size report.
-  say "assembling dist/${name}.html and dist/${name}.js"
-  if [ "$name" = stagewright-designer ]; then
-    node www/build.mjs --bindgen "$bindgen_out" --out "$OUT_DIR" --designer
-  else
-    node www/build.mjs --bindgen "$bindgen_out" --out "$OUT_DIR"
-  fi
-}
-
-build_one stagewright
-build_one stagewright-designer --features extras
+# 6. One page and one script, and the size report. Files of the former
+# second deliverable are removed, so that nothing stale is served.
+say "assembling dist/stagewright.html and dist/stagewright.js"
+rm -f "$OUT_DIR/stagewright-designer.html" "$OUT_DIR/stagewright-designer.js"
+node www/build.mjs --bindgen "$BINDGEN_OUT" --out "$OUT_DIR"

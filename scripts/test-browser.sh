@@ -1,8 +1,7 @@
 #!/usr/bin/env bash
-# Browser tests: opens dist/stagewright.html and the offline designer
-# dist/stagewright-designer.html (from file://) and dist/stagewright.js and
-# dist/stagewright-designer.js (on pages served inside the browser) in
-# Debian's Chromium through playwright-core, with `node --test`.
+# Browser tests: opens dist/stagewright.html (from file://) and
+# dist/stagewright.js (on pages served inside the browser) in Debian's
+# Chromium through playwright-core, with `node --test`.
 #
 # Installs Chromium from Debian packages when /usr/bin/chromium is missing
 # (never a tool's own browser download), installs the test dependency
@@ -29,8 +28,7 @@ if [ ! -x /usr/bin/chromium ]; then
   $SUDO env DEBIAN_FRONTEND=noninteractive apt-get install -y chromium chromium-driver
 fi
 
-if [ ! -f dist/stagewright.html ] || [ ! -f dist/stagewright.js ] ||
-   [ ! -f dist/stagewright-designer.html ] || [ ! -f dist/stagewright-designer.js ]; then
+if [ ! -f dist/stagewright.html ] || [ ! -f dist/stagewright.js ]; then
   echo "==> dist/ is missing: building it"
   bash scripts/build-web.sh
 fi
@@ -64,5 +62,5 @@ echo "==> running browser tests"
 mkdir -p artifacts
 node --test --test-concurrency=1
 
-echo "==> timing (recompute + redraw after an edit, Monte Carlo, synthesis; figures only, never a failure)"
+echo "==> timing (recompute + redraw after an edit, start-up, Monte Carlo, synthesis; figures only, never a failure)"
 node bench.mjs || echo "(the timing script did not finish; its figures are missing)"

@@ -1,31 +1,27 @@
 #!/usr/bin/env node
-// Assembles one deliverable, a script and a page, from the wasm-bindgen
-// output and the modules of www/src/, bundled by esbuild:
+// Assembles the one deliverable, a script and a page, from the
+// wasm-bindgen output and the modules of www/src/, bundled by esbuild:
 //
 //   dist/stagewright.js    one classic script: glue, wasm and the element in
-//                          one function scope; defines <stagewright-calc>;
-//                          a second copy on the same page does nothing.
+//                          one function scope; defines <stagewright-calc>
+//                          with every view; a second copy on the same page
+//                          does nothing.
 //   dist/stagewright.html  one self-contained page (the same script inline,
 //                          plus www/src/page.js) that opens from file:// and
 //                          makes no network request; its own CSP allows
 //                          only its inline script (by hash) and wasm.
 //
-// With --designer (an engine built with the cargo feature `extras`), the
-// offline designer instead: dist/stagewright-designer.js and
-// dist/stagewright-designer.html, from the entry point src/designer.js
-// (the element with the "from requirements" and tolerance views of
-// src/views/) in place of src/calculator.js, and its own budget.
+// esbuild bundles the entry point src/main.js (format "iife", minified,
+// the element's `_private` members mangled) with three modules made here:
+// the glue (stagewright:glue), the wasm (stagewright:wasm) and the
+// stylesheet (src/styles.css, minified by esbuild's CSS loader and
+// imported as text). The wasm is gzip-compressed (level 9) before base64:
+// the page unpacks it with the browser's own DecompressionStream, which
+// streams into WebAssembly.compileStreaming, so no decoder runs in
+// JavaScript. The page's own gzip then costs the base64 almost nothing
+// (Huffman coding takes its 64 symbols back to 6 bits each).
 //
-// esbuild bundles the entry point (format "iife", minified, the element's
-// `_private` members mangled) with three modules made here: the glue
-// (stagewright:glue), the wasm (stagewright:wasm) and the stylesheet
-// (src/styles.css, minified by esbuild's CSS loader and imported as text).
-// The wasm is LZMA-compressed before base64 (npm `lzma1` at build time,
-// its decoder bundled from lzma1's own files): about 12 % smaller than the
-// best gzip (zopfli), 9 % after the 3.5 KB of the decoder, and it unpacks
-// in about 50 ms. Raw base64 would add a third to the size.
-//
-// Usage: node www/build.mjs [--bindgen DIR] [--out DIR] [--designer]
+// Usage: node www/build.mjs [--bindgen DIR] [--out DIR]
 // (scripts/build-web.sh runs cargo and wasm-bindgen first, then this.)
 
 import { createHash } from "node:crypto";
@@ -34,14 +30,12 @@ import path from "node:path";
 import { fileURLToPath } from "node:url";
 import { gzipSync } from "node:zlib";
 
-// esbuild and lzma1 (www/package.json; scripts/build-web.sh runs `npm ci`
-// in www/).
-let esbuild, lzmaCompress;
+// esbuild (www/package.json; scripts/build-web.sh runs `npm ci` in www/).
+let esbuild;
 try {
   esbuild = await import("esbuild");
-  ({ compress: lzmaCompress } = await import("lzma1"));
 } catch (e) {
-  throw new Error("esbuild or lzma1 is missing: run `npm ci` in www/ (scripts/build-web.sh does)");
+  throw new Error("esbuild is missing: run `npm ci` in www/ (scripts/build-web.sh does)");
 }
 
 const here = path.dirname(fileURLToPath(import.meta.url));
@@ -54,19 +48,13 @@ function arg(name, fallback) {
 }
 
 const bindgenDir = arg("--bindgen", path.join(root, "target", "wasm", "bindgen"));
-// --designer: the engine was built with the feature `extras`; bundle the
-// designer's entry point (with the views) and write the designer's files.
-const extras = process.argv.includes("--designer");
 const outDir = arg("--out", path.join(root, "dist"));
-const baseName = extras ? "stagewright-designer" : "stagewright";
+const baseName = "stagewright";
 
-// Size budgets of the standalone pages (DEVELOPERS.md, "Size"): the
-// calculator 400 KB raw and 160 KB gzipped (150 KB until the page read
-// design files with the core's own JSON reader, which costs about 17 KB
-// of the compressed engine: serde_json's parser with correctly rounded
-// numbers), the designer 400 KB raw and 200 KB gzipped.
-const BUDGET_HTML_RAW = 400 * 1000;
-const BUDGET_HTML_GZIP = (extras ? 200 : 160) * 1000;
+// Size budget of the standalone page (DEVELOPERS.md, "Size"): 800 KB raw
+// and 250 KB gzipped, for the element with every view.
+const BUDGET_HTML_RAW = 800 * 1000;
+const BUDGET_HTML_GZIP = 250 * 1000;
 
 const read = (p) => readFileSync(p, "utf8");
 
@@ -103,28 +91,21 @@ const glue = plainDebugString(read(path.join(bindgenDir, "stagewright_wasm.js"))
 if (!/^let wasm_bindgen\b/m.test(glue)) {
   throw new Error("unexpected wasm-bindgen glue: expected the no-modules target (let wasm_bindgen = …)");
 }
-// The engine must match the deliverable: the designer's views call the
-// exports of the feature `extras`, and the calculator must not carry them.
-if (/\bdesign_from_spec\b/.test(glue) !== extras) {
-  throw new Error(extras
-    ? "the designer needs an engine built with `--features extras` (its glue has no design_from_spec)"
-    : "the calculator's engine was built with the feature `extras`: build it without");
+if (!/\bdesign_from_spec\b/.test(glue) || !/\bTolerance\b/.test(glue)) {
+  throw new Error("unexpected wasm-bindgen glue: the engine lacks design_from_spec or Tolerance");
 }
 const wasmPath = path.join(bindgenDir, "stagewright_wasm_bg.wasm");
 const wasm = readFileSync(wasmPath);
 
-/** The wasm in LZMA format ("lzma alone": properties, size, stream),
- * mode 9 of the npm package lzma1, whose own decoder unpacks it in the
- * page (src/engine.js). */
-const wasmLzma = Buffer.from(lzmaCompress(wasm, 9));
+/** The wasm, gzip level 9: the page's DecompressionStream("gzip") unpacks
+ * it (src/engine.js). */
+const wasmGzip = gzipSync(wasm, { level: 9 });
 
-/** The modules this build makes, and lzma1's decoder files:
+/** The modules this build makes:
  *   stagewright:glue  the no-modules glue as a module whose default export
  *                     is `wasm_bindgen` (the glue's one top-level name);
- *   stagewright:wasm  the LZMA-packed wasm as base64 text;
- *   *.css             minified by esbuild's CSS loader, imported as text;
- *   lzma1/lib/*.js    lzma1's own files (its package exports only the
- *                     whole codec; the page needs the decoder alone). */
+ *   stagewright:wasm  the gzip-packed wasm as base64 text;
+ *   *.css             minified by esbuild's CSS loader, imported as text. */
 const stagewrightModules = {
   name: "stagewright",
   setup(build) {
@@ -132,10 +113,9 @@ const stagewrightModules = {
     build.onLoad({ filter: /.*/, namespace: "stagewright" }, (a) => ({
       contents: a.path === "stagewright:glue"
         ? `${glue}\nexport default wasm_bindgen;\n`
-        : `export default ${JSON.stringify(wasmLzma.toString("base64"))};\n`,
+        : `export default ${JSON.stringify(wasmGzip.toString("base64"))};\n`,
       loader: "js",
     }));
-    build.onResolve({ filter: /^lzma1\/lib\/[\w-]+\.js$/ }, (a) => ({ path: path.join(here, "node_modules", a.path) }));
     build.onLoad({ filter: /\.css$/ }, async (a) => {
       const css = await esbuild.transform(read(a.path), { loader: "css", minify: true, sourcefile: a.path });
       return { contents: css.code.trim(), loader: "text" };
@@ -146,18 +126,21 @@ const stagewrightModules = {
 /** The bundle's outer function: strict, and it returns at once when the
  * page has no custom elements or already has the element (a second copy
  * of the script, or the other deliverable's): then it only upgrades the
- * placeholders that the copy before it may not have seen. */
+ * placeholders that the copy before it may not have seen. The engine's
+ * compiled module lives in this scope, so however many elements a page
+ * holds, and across a documentation site's router navigation, it is
+ * compiled once. */
 const guard =
   '(function(){"use strict";if(typeof window>"u"||!window.customElements)return;' +
   'var prior=window.customElements.get("stagewright-calc");' +
   'if(prior){typeof prior.upgradePlaceholders=="function"&&prior.upgradePlaceholders(document);return}';
 
 const built = await esbuild.build({
-  entryPoints: [path.join(src, extras ? "designer.js" : "calculator.js")],
+  entryPoints: [path.join(src, "main.js")],
   bundle: true,
   format: "iife",
   minify: true,
-  // Every browser with wasm-bindgen's output has this (lzma1 uses class fields).
+  // Every browser with DecompressionStream has this.
   target: "es2022",
   charset: "utf8",
   legalComments: "none",
@@ -179,7 +162,7 @@ const pageScript = (await esbuild.transform(read(path.join(src, "page.js")), {
   minify: true, target: "es2022", charset: "utf8", legalComments: "none",
 })).code;
 const template = read(path.join(here, "index.html"));
-const title = extras ? "Stagewright designer" : "Stagewright";
+const title = "Stagewright";
 
 // The standalone page runs the same bundle inline, then the page script.
 const inline = forInlineScript(`${bundle}${pageScript}`);
@@ -217,20 +200,18 @@ const inputs = Object.entries(Object.values(built.metafile.outputs)[0].inputs);
 const inBundle = (test) => inputs.filter(([name]) => test(name)).reduce((sum, [, i]) => sum + i.bytesInOutput, 0);
 const isWasm = (n) => n.endsWith("stagewright:wasm");
 const isGlue = (n) => n.endsWith("stagewright:glue");
-const isDecoder = (n) => n.includes("node_modules/lzma1/");
 const isCss = (n) => n.endsWith(".css");
 const rows = [
   ["wasm (after wasm-bindgen)", wasm.length, gzipSync(wasm, { level: 9 }).length],
-  ["wasm as inlined (lzma1 -9)", wasm.length, wasmLzma.length],
+  ["wasm as inlined (gzip -9)", wasm.length, wasmGzip.length],
   ["  in the script: wasm, base64", inBundle(isWasm), null],
   ["  the glue", inBundle(isGlue), null],
-  ["  lzma1's decoder", inBundle(isDecoder), null],
   ["  the styles", inBundle(isCss), null],
-  ["  the element (www/src)", inBundle((n) => !isWasm(n) && !isGlue(n) && !isDecoder(n) && !isCss(n)), null],
+  ["  the element (www/src)", inBundle((n) => !isWasm(n) && !isGlue(n) && !isCss(n)), null],
   [shown(jsPath), Buffer.byteLength(bundle), gzipSync(bundle, { level: 9 }).length],
   [shown(htmlPath), Buffer.byteLength(html), gzipSync(html, { level: 9 }).length],
 ];
-console.log(`\nsize report, ${extras ? "the designer" : "the calculator"}`.padEnd(34) + "raw          gzip");
+console.log("\nsize report".padEnd(34) + "raw          gzip");
 for (const [name, raw, gz] of rows) {
   const gzip = gz === null ? "" : `   ${String(gz).padStart(7)} B ${kb(gz).padStart(9)}`;
   console.log(`  ${name.padEnd(32)} ${String(raw).padStart(8)} B ${kb(raw).padStart(9)}${gzip}`);

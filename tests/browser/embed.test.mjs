@@ -95,6 +95,25 @@ describe("embedding dist/stagewright.js", () => {
         csp: "script-src 'self' 'wasm-unsafe-eval'",
         html: page("", `<div data-stagewright data-design="${b64url(design(INJECTED))}"></div><script src="/stagewright.js"></script>`),
       },
+      // What Python-Markdown writes for recipe 1 left bare in a page: the
+      // element's tags in paragraphs of their own, the JSON between them.
+      "/markdown.html": {
+        html: page('<script src="/stagewright.js"></script>',
+          `<p>Our buffer:</p>\n<p><stagewright-calc id="wrapped"></p>\n<script type="application/json">${JSON.stringify(design("Wrapped by Markdown"))}</script>\n<p></stagewright-calc></p>\n` +
+          `<p><stagewright-calc id="second"></p>\n<p><script type="application/json">${JSON.stringify(design("Second wrapped"))}</script></p>\n<p></stagewright-calc></p>`),
+      },
+      "/csp-no-wasm-inline.html": {
+        csp: "script-src 'self'",
+        html: page('<script src="/stagewright.js"></script>',
+          `<div><stagewright-calc><p>fallback</p><script type="application/json">${JSON.stringify(design("Inline under a policy"))}</script></stagewright-calc></div>`),
+      },
+      "/theme.html": {
+        html: '<!doctype html><html lang="en" data-theme="dark"><head><meta charset="utf-8"><title>Dark wiki</title>' +
+          '<script src="/stagewright.js"></script></head><body style="background:#111;color:#eee">' +
+          `<stagewright-calc id="inherit" theme="inherit"><script type="application/json">${JSON.stringify(design("Follows the site"))}</script></stagewright-calc>` +
+          '<stagewright-calc id="light" theme="light"></stagewright-calc>' +
+          `<div id="ph" data-stagewright data-theme="dark" data-design="${b64url(design("Dark placeholder"))}"></div></body></html>`,
+      },
       "/late.html": {
         html: page('<script src="/stagewright.js"></script>', '<div id="slot"></div>'),
       },
@@ -235,6 +254,77 @@ describe("embedding dist/stagewright.js", () => {
     await p.close();
   });
 
+  test("recipe 1 wrapped in paragraphs by Markdown still shows the author's design", async () => {
+    const p = await browser.context.newPage();
+    const before = browser.errors.length;
+    await p.goto(`${ORIGIN}/markdown.html`);
+    await understood(p, "#wrapped");
+    await understood(p, "#second");
+    await p.waitForFunction(() => document.querySelector("#wrapped").report && document.querySelector("#second").report);
+    const titles = await p.evaluate(() => ["#wrapped", "#second"].map((s) => {
+      const el = document.querySelector(s);
+      return [el.design.title, el.report.design.title];
+    }));
+    // The JSON after the element's paragraph (first) and inside the next
+    // paragraph (second) are each taken by their own element.
+    assert.deepEqual(titles, [["Wrapped by Markdown", "Wrapped by Markdown"], ["Second wrapped", "Second wrapped"]]);
+    assert.deepEqual(browser.errors.slice(before), []);
+    await p.close();
+  });
+
+  test("recipe 1 under a policy without 'wasm-unsafe-eval' says what the policy needs, in place", async () => {
+    const p = await browser.context.newPage();
+    const before = browser.errors.length;
+    await p.goto(`${ORIGIN}/csp-no-wasm-inline.html`);
+    const banner = p.locator("stagewright-calc .banner.error");
+    await banner.waitFor({ state: "visible", timeout: 15000 });
+    // The author's design was read after the failure: the message stays.
+    await p.waitForTimeout(300);
+    assert.equal(await banner.isVisible(), true);
+    assert.match(await banner.textContent(), /Content-Security-Policy does not allow WebAssembly.*'wasm-unsafe-eval'/);
+    browser.errors.splice(before); // the refused compile is expected here
+    await p.close();
+  });
+
+  test("theme: inherit follows the site's dark switch both ways; light stays light; placeholders take data-theme", async () => {
+    const p = await browser.context.newPage();
+    await p.goto(`${ORIGIN}/theme.html`);
+    await understood(p, "#inherit");
+    await p.waitForFunction(() => document.querySelector("#ph stagewright-calc"));
+    const paper = (sel) => p.evaluate((s) => {
+      const el = document.querySelector(s);
+      return [el.scheme, getComputedStyle(el.shadowRoot.querySelector(".frame")).backgroundColor];
+    }, sel);
+    const darkPaper = "rgb(17, 26, 28)"; // --sw-paper of the dark palette, #111a1c
+    const lightPaper = "rgb(244, 241, 232)"; // of the light one, #f4f1e8
+    assert.deepEqual(await paper("#inherit"), ["dark", darkPaper], "html[data-theme=dark]");
+    assert.deepEqual(await paper("#light"), ["light", lightPaper]);
+    assert.deepEqual(await paper("#ph stagewright-calc"), ["dark", darkPaper], "data-theme on the placeholder");
+    await screenshot(p, "theme-dark-site.png");
+    // The site's toggle: the element follows at once, with no reload.
+    await p.evaluate(() => document.documentElement.setAttribute("data-theme", "light"));
+    await p.waitForFunction(() => document.querySelector("#inherit").scheme === "light");
+    assert.deepEqual(await paper("#inherit"), ["light", lightPaper]);
+    await p.evaluate(() => {
+      document.documentElement.removeAttribute("data-theme");
+      document.body.classList.add("dark");
+    });
+    await p.waitForFunction(() => document.querySelector("#inherit").scheme === "dark");
+    assert.deepEqual(await paper("#inherit"), ["dark", darkPaper], "body.dark");
+    // Sizes in px of the element's own type, not the site's root font.
+    const sizes = await p.evaluate(async () => {
+      const el = document.querySelector("#inherit");
+      const title = () => getComputedStyle(el.shadowRoot.querySelector("h2.title")).fontSize;
+      const a = title();
+      document.documentElement.style.fontSize = "20px";
+      await new Promise((r) => requestAnimationFrame(r));
+      return [a, title()];
+    });
+    assert.equal(sizes[0], sizes[1], "the host's root font size does not scale the element");
+    assert.deepEqual(browser.errors, []);
+    await p.close();
+  });
+
   test("placeholders added later (a router swapping pages) are upgraded; the API works", async () => {
     const p = await browser.context.newPage();
     await p.goto(`${ORIGIN}/late.html`);
@@ -300,9 +390,13 @@ describe("embedding dist/stagewright.js", () => {
       };
     });
     assert.equal(snippets.texts.length, 3);
-    assert.match(snippets.texts[0], /<script src="https:\/\/wiki\.example\/stagewright\.js"><\/script>\n<stagewright-calc>/);
+    // Recipe 1 inside a <div>, which Markdown passes through untouched,
+    // with the text shown until the script runs.
+    assert.match(snippets.texts[0], /<script src="https:\/\/wiki\.example\/stagewright\.js"><\/script>\n<div class="stagewright">\n<stagewright-calc>\n<p>The Stagewright calculator appears here when stagewright\.js has loaded/);
     assert.match(snippets.texts[0], /"title": "First stage"/);
-    assert.match(snippets.texts[1], /^<iframe src="[^"]*#design=[A-Za-z0-9_-]+"/);
+    assert.match(snippets.texts[0], /<\/stagewright-calc>\n<\/div>$/);
+    assert.match(snippets.texts[1], /^<iframe class="stagewright" src="[^"]*#design=[A-Za-z0-9_-]+"/);
+    assert.match(snippets.texts[1], /e\.data\.stagewright !== "height"/);
     assert.match(snippets.texts[2], /^<div data-stagewright data-design="[A-Za-z0-9_-]+"><\/div>/);
     assert.equal(snippets.csp, "Content-Security-Policy: script-src 'self' 'wasm-unsafe-eval'");
     // On a host page a link could not reopen the design: no "Copy link".

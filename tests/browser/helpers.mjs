@@ -15,10 +15,6 @@ export const dist = path.join(root, "dist");
 export const artifacts = path.join(here, "artifacts");
 export const htmlUrl = pathToFileURL(path.join(dist, "stagewright.html")).href;
 export const scriptPath = path.join(dist, "stagewright.js");
-/** The offline designer: the calculator with the "from requirements" and
- * tolerance views (scripts/build-web.sh builds it beside the calculator). */
-export const designerHtml = path.join(dist, "stagewright-designer.html");
-export const designerScriptPath = path.join(dist, "stagewright-designer.js");
 
 const CHROMIUM = process.env.CHROMIUM || "/usr/bin/chromium";
 const FLAGS = [

@@ -9,10 +9,9 @@
 //!   page can show each message next to the field it names;
 //! * runs the core's analysis of a design file and hands the page its
 //!   report, frequency sweep and load lines ([`compute`], [`analyze`],
-//!   [`presets`], [`preset_data`]); with the feature `extras`, also
-//!   designs a specification (`design_from_spec`) and runs the tolerance
-//!   analysis in chunks (`Tolerance`): the offline designer has them,
-//!   the calculator leaves them out for its size budget;
+//!   [`presets`], [`preset_data`]), designs a specification
+//!   ([`design_from_spec`]) and runs the tolerance analysis in chunks
+//!   ([`Tolerance`]);
 //! * draws plots on canvases ([`plot_frequency`], [`plot_xy`]).
 //!
 //! It holds no circuit equation: every number the page shows comes from the
@@ -25,23 +24,19 @@
 mod analysis;
 mod js;
 mod plot;
-#[cfg(feature = "extras")]
 mod spec;
-#[cfg(feature = "extras")]
 mod tolerance;
 mod values;
 
 pub use analysis::{analyze, compute, preset_data, presets, read_design_text, utf8_text};
 pub use plot::{plot_frequency, plot_xy};
-#[cfg(feature = "extras")]
 pub use spec::design_from_spec;
-#[cfg(feature = "extras")]
 pub use tolerance::Tolerance;
 pub use values::{format_si, parse_value, series_lookup};
 
 /// The allocator: a small free-list allocator in place of the standard
 /// library's dlmalloc, about 3.5 KB less in the compressed page, which
-/// keeps `dist/stagewright.html` within its 150 KB gzip budget. The page
+/// keeps `dist/stagewright.html` within its gzip budget. The page
 /// is single-threaded, and the engine's allocations are a few thousand
 /// short-lived blocks per recompute, where a free list is quick.
 #[cfg(target_arch = "wasm32")]

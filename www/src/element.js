@@ -19,7 +19,7 @@
 import { designText, encodeDesign } from "./codec.js";
 import { clone, getPath, ordered, own } from "./design.js";
 import { h, sv } from "./dom.js";
-import { asFieldError, enginePresets, hasAnalysis, loadEngine, runAnalysis } from "./engine.js";
+import { asFieldError, enginePresets, hasAnalysis, loadEngine, mark, runAnalysis } from "./engine.js";
 import { withForm } from "./form.js";
 import { upgradePlaceholders, watchPlaceholders } from "./placeholders.js";
 import { withPlots } from "./plots.js";
@@ -49,9 +49,71 @@ function adoptStyles(root) {
 
 let uid = 0;
 
+/** The attributes by which documentation sites mark their theme. */
+const HOST_THEME_ATTRIBUTES = ["class", "data-theme", "data-bs-theme", "data-color-scheme", "data-md-color-scheme", "style"];
+
+/** The element's parent, across shadow roots. */
+function parentOf(n) {
+  if (n.parentElement) return n.parentElement;
+  const root = n.getRootNode && n.getRootNode();
+  return root && root.host ? root.host : null;
+}
+
+/** The host page's theme, "dark" or "light", from the nearest ancestor
+ * that states one: `data-theme` (or `data-bs-theme`, `data-color-scheme`)
+ * naming dark or light, a `data-md-color-scheme` ("slate" is dark), or a
+ * class `dark`/`dark-mode`/`theme-dark` (or the light ones); else the
+ * page's own `color-scheme` when it is one of the two; else null (the
+ * system's preference decides). */
+export function hostScheme(el) {
+  for (let n = parentOf(el); n; n = parentOf(n)) {
+    for (const a of ["data-theme", "data-bs-theme", "data-color-scheme"]) {
+      const t = (n.getAttribute(a) || "").trim().toLowerCase();
+      if (/\bdark\b|night/.test(t)) return "dark";
+      if (/\blight\b|day/.test(t)) return "light";
+    }
+    const md = n.getAttribute("data-md-color-scheme");
+    if (md) return md.trim().toLowerCase() === "slate" || /dark/i.test(md) ? "dark" : "light";
+    const c = n.classList;
+    if (c && (c.contains("dark") || c.contains("dark-mode") || c.contains("theme-dark"))) return "dark";
+    if (c && (c.contains("light") || c.contains("light-mode") || c.contains("theme-light"))) return "light";
+  }
+  try {
+    const cs = getComputedStyle(document.documentElement).colorScheme.trim();
+    if (cs === "dark" || cs === "only dark") return "dark";
+    if (cs === "light" || cs === "only light") return "light";
+  } catch (e) {
+    /* no computed style */
+  }
+  return null;
+}
+
+/** The message shown in place when the engine cannot start, naming what
+ * is missing: the policy's 'wasm-unsafe-eval', or a browser feature. */
+export function engineFailure(err) {
+  const msg = err && err.message ? String(err.message) : String(err);
+  if (/unsafe-eval|content.security.policy|\bCSP\b/i.test(msg)) {
+    return "The calculator cannot start: this page's Content-Security-Policy does not allow WebAssembly. " +
+      "Its script-src must include 'wasm-unsafe-eval' (see the embedding guide).";
+  }
+  if (/lacks /.test(msg)) return `The calculator cannot start: ${msg}.`;
+  return `The calculator engine could not start: ${msg}. If this page sets a Content-Security-Policy, ` +
+    "its script-src must include 'wasm-unsafe-eval'.";
+}
+
+/** The element's width (CSS px) under which it lays out in one column
+ * with the results first (also the styles' container query). */
+const NARROW_WIDTH = 900;
+
+/** Other names the `views` and `view` attributes accept. */
+const VIEW_ALIASES = {
+  calc: "calculator", spec: "requirements", "from-requirements": "requirements", design: "requirements",
+  tolerance: "tolerances", "monte-carlo": "tolerances", "worst-case": "tolerances",
+};
+
 export class StagewrightCalc extends withShare(withPlots(withResults(withDiagram(withForm(HTMLElement))))) {
   static get observedAttributes() {
-    return ["readonly", "compact", "src", "theme"];
+    return ["readonly", "compact", "src", "theme", "views", "view"];
   }
 
   constructor() {
@@ -85,9 +147,13 @@ export class StagewrightCalc extends withShare(withPlots(withResults(withDiagram
     };
     this._resizeObserver = typeof ResizeObserver === "function" ? new ResizeObserver(this._onResize) : null;
     this._onScheme = () => {
+      this._applyScheme();
       this._themeCache = null;
       this._schedulePlots();
     };
+    // theme="inherit": the host page's own light/dark switch, on any
+    // ancestor of the element (data-theme, class="dark", …).
+    this._hostObserver = typeof MutationObserver === "function" ? new MutationObserver(this._onScheme) : null;
     this._onBeforePrint = () => this._openAllForPrint(true);
     this._onAfterPrint = () => this._openAllForPrint(false);
     // A design set as a property before this element was upgraded.
@@ -146,6 +212,8 @@ export class StagewrightCalc extends withShare(withPlots(withResults(withDiagram
     }
     this._scheme = window.matchMedia ? window.matchMedia("(prefers-color-scheme: dark)") : null;
     if (this._scheme && this._scheme.addEventListener) this._scheme.addEventListener("change", this._onScheme);
+    this._watchHost();
+    this._applyScheme();
     window.addEventListener("beforeprint", this._onBeforePrint);
     window.addEventListener("afterprint", this._onAfterPrint);
     if (!this._sourceLoaded) this._readSource();
@@ -158,6 +226,7 @@ export class StagewrightCalc extends withShare(withPlots(withResults(withDiagram
   disconnectedCallback() {
     if (this._resizeObserver) this._resizeObserver.disconnect();
     if (this._scheme && this._scheme.removeEventListener) this._scheme.removeEventListener("change", this._onScheme);
+    if (this._hostObserver) this._hostObserver.disconnect();
     window.removeEventListener("beforeprint", this._onBeforePrint);
     window.removeEventListener("afterprint", this._onAfterPrint);
   }
@@ -166,7 +235,11 @@ export class StagewrightCalc extends withShare(withPlots(withResults(withDiagram
     if (!this._built || oldValue === newValue) return;
     if (name === "readonly") this._applyReadonly();
     if (name === "compact") this._applyCompact();
-    if (name === "theme") this._onScheme();
+    if (name === "theme") {
+      this._watchHost();
+      this._onScheme();
+    }
+    if (name === "views" || name === "view") this._applyViews();
     if (name === "src" && newValue) {
       this._sourceLoaded = false;
       this._readSource();
@@ -183,9 +256,19 @@ export class StagewrightCalc extends withShare(withPlots(withResults(withDiagram
       this.design = d;
       return;
     }
-    const script = this.querySelector('script[type="application/json"]');
+    const script = this._jsonScript();
     if (script) {
-      this._loadText(script.textContent);
+      // Read, kept, and taken out of the page: a documentation site's
+      // router that swaps pages in and runs their inline scripts again
+      // (copying each one's text into a new <script> without its type)
+      // then finds no JSON to run as code.
+      this._inlineText = script.textContent;
+      script.remove();
+      this._loadText(this._inlineText);
+      return;
+    }
+    if (this._inlineText !== undefined) {
+      this._loadText(this._inlineText);
       return;
     }
     const src = this.getAttribute("src");
@@ -209,7 +292,7 @@ export class StagewrightCalc extends withShare(withPlots(withResults(withDiagram
     if (document.readyState === "loading") {
       // Children may still be arriving from the parser.
       document.addEventListener("DOMContentLoaded", () => {
-        if (!this.querySelector('script[type="application/json"]')) {
+        if (!this._jsonScript()) {
           if (!this._design) this._loadDesign(clone(EXAMPLE_DESIGN), true);
           return;
         }
@@ -219,6 +302,27 @@ export class StagewrightCalc extends withShare(withPlots(withResults(withDiagram
       return;
     }
     if (!this._design) this._loadDesign(clone(EXAMPLE_DESIGN), true);
+  }
+
+  /** The design's inline JSON: a `<script type="application/json">`
+   * inside the element, or, where a Markdown processor has wrapped the
+   * element's tags in paragraphs and so moved the script out of it, the
+   * script that directly follows the element or its paragraph (empty
+   * paragraphs between are skipped), alone or as the only content of the
+   * next paragraph. A script another element has taken is not taken again. */
+  _jsonScript() {
+    const JSON_SCRIPT = 'script[type="application/json"]';
+    const inside = this.querySelector(JSON_SCRIPT);
+    if (inside) return inside;
+    let n = this.nextElementSibling;
+    if (!n && this.parentElement && this.parentElement.tagName === "P") n = this.parentElement.nextElementSibling;
+    const emptyP = (e) => e && e.tagName === "P" && !e.textContent.trim() && !e.firstElementChild;
+    while (emptyP(n)) n = n.nextElementSibling;
+    if (n && n.tagName === "P" && n.children.length === 1 && n.firstElementChild.matches(JSON_SCRIPT)) n = n.firstElementChild;
+    if (!n || !n.matches(JSON_SCRIPT)) return null;
+    if (n.stagewrightOwner && n.stagewrightOwner !== this && n.stagewrightOwner.isConnected) return null;
+    n.stagewrightOwner = this;
+    return n;
   }
 
   /** Loads a design from its JSON text once the engine has read it with
@@ -306,7 +410,12 @@ export class StagewrightCalc extends withShare(withPlots(withResults(withDiagram
     this._seriesC = this._seriesSelect("C", "capacitor series");
     for (const g of GROUPS) this._form.append(this._buildGroup(g));
     this._formBox = h("details", { class: "design-box", open: true },
-      h("summary", null, "Design values"), this._form);
+      h("summary", null, "Edit the design"), this._form);
+    this._formBox.addEventListener("toggle", () => {
+      // A toggle event comes a task after the change: the reader's own
+      // when the state is not the one set last.
+      if (this._formBox.open !== this._formExpected) this._formToggled = true;
+    });
 
     // Diagram.
     this._diagram = h("div", { class: "diagram" });
@@ -325,13 +434,19 @@ export class StagewrightCalc extends withShare(withPlots(withResults(withDiagram
       h("p", { class: "deferral" }, DEFERRAL),
       h("p", { class: "version" }, `Stagewright ${STAGEWRIGHT_VERSION}`));
 
-    this._main = h("div", { class: "layout" },
+    this._main = h("div", { class: "layout view-panel", "data-view": "calculator" },
       h("div", { class: "col-form" }, this._formBox),
       h("div", { class: "col-out" }, diagramCard, this._results, this._plots));
-    // The views of the designer (src/views/), on an engine with its extras.
-    if (this._buildViews) this._buildViews(this._main.lastChild);
-    this._frame = h("div", { class: "frame", part: "frame" }, header, this._banner, this._status, this._main, footer);
+    // The view switcher: a tab per view (the calculator here; views/ adds
+    // "from requirements" and tolerances). A view is built the first time
+    // it is shown, so views a page does not open cost no start-up time.
+    this._tabBar = h("div", { class: "tabs", role: "tablist", "aria-label": "Views" });
+    this._tabBar.addEventListener("keydown", (e) => this._onTabKey(e));
+    this._panels = new Map([["calculator", this._main]]);
+    this._tabs = new Map();
+    this._frame = h("div", { class: "frame", part: "frame" }, header, this._tabBar, this._banner, this._status, this._main, footer);
     root.append(this._frame);
+    this._applyViews();
 
     // Diagram: choose a part → focus its input.
     this._diagram.addEventListener("click", (e) => {
@@ -361,6 +476,13 @@ export class StagewrightCalc extends withShare(withPlots(withResults(withDiagram
 
     this._applyReadonly();
     this._applyCompact();
+    this._widthObserver = typeof ResizeObserver === "function"
+      ? new ResizeObserver((entries) => {
+        for (const e of entries) this._onWidth(e.contentRect.width);
+      })
+      : null;
+    if (this._widthObserver) this._widthObserver.observe(this);
+    this._onWidth(this.getBoundingClientRect().width);
   }
 
   _mark() {
@@ -368,6 +490,148 @@ export class StagewrightCalc extends withShare(withPlots(withResults(withDiagram
     sv("path", { d: "M3 17 L9 17 L12 7 L15 17 L21 17", class: "mark-line" }, svg);
     sv("circle", { cx: 12, cy: 7, r: 2.2, class: "mark-dot" }, svg);
     return svg;
+  }
+
+  /* ---------------- theme ---------------- */
+
+  /** "light" or "dark", from the `theme` attribute: light, dark, auto (the
+   * system's preference, the default) or inherit (the host page's own
+   * switch, see hostScheme, else the system's). The shadow styles key the
+   * palette on the host's `data-sw-scheme`, which this sets. */
+  get scheme() {
+    const t = (this.getAttribute("theme") || "auto").trim().toLowerCase();
+    if (t === "light" || t === "dark") return t;
+    if (t === "inherit") {
+      const host = hostScheme(this);
+      if (host) return host;
+    }
+    return this._scheme && this._scheme.matches ? "dark" : "light";
+  }
+
+  _applyScheme() {
+    const s = this.scheme;
+    if (this.getAttribute("data-sw-scheme") !== s) this.setAttribute("data-sw-scheme", s);
+  }
+
+  /** With theme="inherit", watches the element's ancestors' attributes
+   * that carry a site's theme; otherwise nothing. */
+  _watchHost() {
+    const mo = this._hostObserver;
+    if (!mo) return;
+    mo.disconnect();
+    if ((this.getAttribute("theme") || "").trim().toLowerCase() !== "inherit") return;
+    for (let n = parentOf(this); n; n = parentOf(n)) {
+      mo.observe(n, { attributes: true, attributeFilter: HOST_THEME_ATTRIBUTES });
+    }
+  }
+
+  /* ---------------- views ---------------- */
+
+  /** The views this element can show: [name, tab label]. The views/
+   * mixin adds its own after the calculator. */
+  _viewDefs() {
+    return [["calculator", "Calculator"]];
+  }
+
+  /** The views the `views` attribute asks for (space- or comma-separated
+   * names, in the order of the tabs), else all; unknown names are left out. */
+  _shownViews() {
+    const defs = this._viewDefs();
+    const names = defs.map(([n]) => n);
+    const asked = (this.getAttribute("views") || "").toLowerCase().split(/[\s,]+/).filter(Boolean)
+      .map((n) => VIEW_ALIASES[n] || n).filter((n) => names.includes(n));
+    return asked.length ? defs.filter(([n]) => asked.includes(n)) : defs;
+  }
+
+  /** Builds the tab bar for the views shown and shows the `view`
+   * attribute's view, the current one if still shown, or the first. */
+  _applyViews() {
+    const shown = this._shownViews();
+    this._tabBar.textContent = "";
+    this._tabs.clear();
+    for (const [name, label] of shown) {
+      const tab = h("button", { type: "button", role: "tab", class: "tab", id: this._id("tab-" + name), "data-view": name }, label);
+      tab.addEventListener("click", () => this.showView(name));
+      this._tabs.set(name, tab);
+      this._tabBar.append(tab);
+    }
+    this._tabBar.hidden = shown.length < 2;
+    const names = shown.map(([n]) => n);
+    const asked = VIEW_ALIASES[this.getAttribute("view")] || this.getAttribute("view");
+    const next = names.includes(asked) ? asked : names.includes(this._view) ? this._view : names[0];
+    this._view = null;
+    this.showView(next);
+  }
+
+  /** The view on screen ("calculator", "requirements", "tolerances"). */
+  get view() {
+    return this._view || "calculator";
+  }
+
+  set view(name) {
+    this.showView(name);
+  }
+
+  /** Shows one view (built the first time); returns whether it is shown. */
+  showView(name) {
+    name = VIEW_ALIASES[name] || name;
+    if (!this._built || !this._tabs.has(name)) return false;
+    if (this._view === name) return true;
+    const panel = this._viewPanel(name);
+    if (!panel) return false;
+    this._view = name;
+    for (const [n, p] of this._panels) {
+      p.hidden = n !== name;
+      p.setAttribute("role", "tabpanel");
+      const tab = this._tabs.get(n);
+      if (tab) p.setAttribute("aria-labelledby", tab.id);
+    }
+    for (const [n, tab] of this._tabs) {
+      const on = n === name;
+      tab.setAttribute("aria-selected", on ? "true" : "false");
+      tab.tabIndex = on ? 0 : -1;
+      tab.setAttribute("aria-controls", this._id("panel-" + n));
+    }
+    panel.id = this._id("panel-" + name);
+    if (this._onViewShown) this._onViewShown(name);
+    this._schedulePlots();
+    this._emit("stagewright-view", { view: name });
+    return true;
+  }
+
+  /** The panel of a view, built (hidden) if it was not yet, or null. */
+  _viewPanel(name) {
+    let panel = this._panels.get(name);
+    if (!panel && this._built) {
+      panel = this._buildView(name);
+      if (!panel) return null;
+      panel.classList.add("view-panel");
+      panel.setAttribute("data-view", name);
+      panel.hidden = this._view !== name;
+      this._panels.set(name, panel);
+      this._main.after(panel);
+    }
+    return panel || null;
+  }
+
+  /** Builds a view other than the calculator (views/ overrides it). */
+  _buildView() {
+    return null;
+  }
+
+  _onTabKey(e) {
+    const tabs = Array.from(this._tabs.values());
+    const i = tabs.indexOf(e.target);
+    if (i < 0) return;
+    let j = -1;
+    if (e.key === "ArrowRight") j = (i + 1) % tabs.length;
+    else if (e.key === "ArrowLeft") j = (i - 1 + tabs.length) % tabs.length;
+    else if (e.key === "Home") j = 0;
+    else if (e.key === "End") j = tabs.length - 1;
+    if (j < 0) return;
+    e.preventDefault();
+    this.showView(tabs[j].getAttribute("data-view"));
+    tabs[j].focus();
   }
 
   /* ---------------- attributes ---------------- */
@@ -388,7 +652,28 @@ export class StagewrightCalc extends withShare(withPlots(withResults(withDiagram
   _applyCompact() {
     const compact = this.hasAttribute("compact");
     this._frame.classList.toggle("is-compact", compact);
-    this._formBox.open = !compact;
+    this._foldForm();
+  }
+
+  /** Under 900 px of the element's own width: one column, results first,
+   * the form folded into an editor panel (opened by its summary, or by
+   * choosing a part in the diagram). */
+  _onWidth(width) {
+    if (!(width > 0)) return;
+    const narrow = width < NARROW_WIDTH;
+    if (narrow === this._narrow) return;
+    this._narrow = narrow;
+    this._frame.classList.toggle("is-narrow", narrow);
+    this._foldForm();
+  }
+
+  /** Folds the form when compact or narrow, unfolds it otherwise; once
+   * the reader has opened or closed it, their choice stands. */
+  _foldForm() {
+    if (this._formToggled) return;
+    const fold = this.hasAttribute("compact") || !!this._narrow;
+    this._formExpected = !fold;
+    this._formBox.open = !fold;
   }
 
   /* ---------------- engine ---------------- */
@@ -409,6 +694,7 @@ export class StagewrightCalc extends withShare(withPlots(withResults(withDiagram
       sel.value = current;
     }
     if (this._fillSpecPresets && this._specInputs) this._fillSpecPresets(api);
+    if (this._onEngine) this._onEngine(api);
     if (this._pendingText !== undefined) {
       this._loadText(this._pendingText);
       return;
@@ -421,12 +707,9 @@ export class StagewrightCalc extends withShare(withPlots(withResults(withDiagram
   }
 
   _engineFailed(err) {
-    const msg = err && err.message ? err.message : String(err);
-    this._setBanner(
-      `The calculator engine could not start: ${msg}. If this page sets a Content-Security-Policy, ` +
-        "its script-src must include 'wasm-unsafe-eval'.",
-      "error",
-    );
+    this._engineError = engineFailure(err);
+    this._setBanner(this._engineError, "error");
+    this._frame.classList.add("no-engine");
   }
 
   /* ---------------- computing ---------------- */
@@ -450,13 +733,22 @@ export class StagewrightCalc extends withShare(withPlots(withResults(withDiagram
       this._announce(e.message);
       return;
     }
+    if (!this._report) mark("stagewright:computed");
     this._analysis = out;
     this._report = out.report;
     this._markStale(this._invalid.size > 0);
     this.renderReport(out.report);
     this._annotateDiagram(out.report);
-    this._drawPlots();
+    // An edit redraws at once (the timing script measures edit → redraw);
+    // the first results show before the first plots, drawn in the next
+    // frame (the canvas's first text costs tens of ms of font set-up).
+    if (this._reported) this._drawPlots();
+    else this._schedulePlots();
     this._announce(this._summary(out.report));
+    if (!this._reported) {
+      this._reported = true;
+      mark("stagewright:first-report");
+    }
     this._emit("stagewright-report", { report: clone(out.report), design });
   }
 
@@ -518,6 +810,11 @@ export class StagewrightCalc extends withShare(withPlots(withResults(withDiagram
   }
 
   _setBanner(text, kind) {
+    // A failure to start stays on screen whatever is loaded after it.
+    if (!text && this._engineError) {
+      text = this._engineError;
+      kind = "error";
+    }
     this._banner.textContent = text || "";
     this._banner.hidden = !text;
     this._banner.className = "banner" + (kind ? " " + kind : "");
@@ -525,11 +822,13 @@ export class StagewrightCalc extends withShare(withPlots(withResults(withDiagram
 
   _openAllForPrint(opening) {
     if (opening) {
-      this._printState = { form: this._formBox.open, share: this._shareDetails.open };
+      this._printState = { form: this._formBox.open, share: this._shareDetails.open, expected: this._formExpected };
+      this._formExpected = true;
       this._formBox.open = true;
       this._shareDetails.open = false;
       this._schedulePlots();
     } else if (this._printState) {
+      this._formExpected = this._printState.form;
       this._formBox.open = this._printState.form;
       this._printState = null;
     }

@@ -1,35 +1,65 @@
-/* The engine: the wasm module, unpacked and started once per page and
+/* The engine: the wasm module, unpacked and compiled once per page and
  * shared by every element (loadEngine), and the small wrappers over its
- * exports. The wasm-bindgen "no-modules" glue and the LZMA-packed base64
+ * exports. The wasm-bindgen "no-modules" glue and the gzip-packed base64
  * of the wasm are modules that www/build.mjs makes (stagewright:glue,
- * stagewright:wasm); lzma1's decoder unpacks the bytes. */
+ * stagewright:wasm). The browser's own DecompressionStream unpacks the
+ * bytes as they stream into WebAssembly.compileStreaming: no decoder
+ * runs in JavaScript. */
 
 import wasm_bindgen from "stagewright:glue";
-import WASM_LZMA_BASE64 from "stagewright:wasm";
-import { Decoder } from "lzma1/lib/decoder.js";
-import { InputBuffer, OutputBuffer } from "lzma1/lib/streams.js";
+import WASM_GZIP_BASE64 from "stagewright:wasm";
 
 let enginePromise = null;
 
 function base64ToBytes(b64) {
+  if (typeof Uint8Array.fromBase64 === "function") return Uint8Array.fromBase64(b64);
   const bin = atob(b64);
   const out = new Uint8Array(bin.length);
   for (let i = 0; i < bin.length; i++) out[i] = bin.charCodeAt(i);
   return out;
 }
 
-/** The bytes of an "lzma alone" stream (properties, size, data). */
-function unlzma(bytes) {
-  const out = new OutputBuffer(bytes.length * 4);
-  new Decoder().decompress(new InputBuffer(bytes), out);
-  return out.buf.subarray(0, out.count);
+/** What this browser lacks to start the engine, in words, or "". */
+export function missingFeature() {
+  if (typeof WebAssembly !== "object" || typeof WebAssembly.compile !== "function") return "WebAssembly";
+  if (typeof DecompressionStream !== "function") return "DecompressionStream (Chromium 80, Firefox 113, Safari 16.4 or later)";
+  if (typeof Response !== "function" || typeof Blob !== "function") return "the Fetch API's Response and Blob";
+  return "";
 }
 
+/** Compiles the engine's module: gzip → DecompressionStream → compile,
+ * streaming where the browser can. */
+async function compileEngine() {
+  const missing = missingFeature();
+  if (missing) throw new Error(`this browser lacks ${missing}`);
+  const packed = new Blob([base64ToBytes(WASM_GZIP_BASE64)]);
+  const stream = packed.stream().pipeThrough(new DecompressionStream("gzip"));
+  const response = new Response(stream, { headers: { "content-type": "application/wasm" } });
+  if (typeof WebAssembly.compileStreaming === "function") {
+    return WebAssembly.compileStreaming(response);
+  }
+  return WebAssembly.compile(await response.arrayBuffer());
+}
+
+/** A User Timing mark (the timing script reads them), where there is one. */
+export function mark(name) {
+  try {
+    if (typeof performance === "object" && performance.mark) performance.mark(name);
+  } catch (e) {
+    /* no timing marks here */
+  }
+}
+
+/** The engine, started once per page (the first call starts it; main.js
+ * calls it as the script runs) and shared by every element. */
 export function loadEngine() {
   if (!enginePromise) {
     enginePromise = (async () => {
-      const bytes = unlzma(base64ToBytes(WASM_LZMA_BASE64));
-      await wasm_bindgen({ module_or_path: bytes });
+      mark("stagewright:engine-start");
+      const module = await compileEngine();
+      mark("stagewright:engine-compiled");
+      await wasm_bindgen({ module_or_path: module });
+      mark("stagewright:engine-ready");
       return wasm_bindgen;
     })();
     enginePromise.catch(() => {});

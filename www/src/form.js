@@ -297,6 +297,7 @@ export const withForm = (Base) => class extends Base {
     if (key === "transistor") key = "preset";
     const f = this._fields.get(key);
     if (!f) return;
+    if (this.view !== "calculator") this.showView("calculator");
     if (!this._formBox.open) this._formBox.open = true;
     f.row.hidden = false;
     f.input.focus({ preventScroll: true });

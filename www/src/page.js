@@ -50,4 +50,17 @@
 
   window.addEventListener("hashchange", fromHash);
   fromHash();
+
+  // In a frame: the page's height, posted to the parent whenever it
+  // changes, so that the host page can size the frame to it (EMBEDDING.md,
+  // recipe 2). Only the height leaves the frame.
+  if (window.parent !== window && typeof ResizeObserver === "function") {
+    var lastHeight = 0;
+    new ResizeObserver(function () {
+      var height = Math.ceil(document.body.getBoundingClientRect().height);
+      if (height === lastHeight) return;
+      lastHeight = height;
+      window.parent.postMessage({ stagewright: "height", height: height }, "*");
+    }).observe(document.body);
+  }
 })();

@@ -10,6 +10,11 @@ export function upgradePlaceholders(root) {
     for (const a of ["readonly", "compact"]) {
       if (div.hasAttribute("data-" + a)) el.setAttribute(a, "");
     }
+    // data-theme (auto, light, dark, inherit), data-views, data-view.
+    for (const a of ["theme", "views", "view"]) {
+      const v = div.getAttribute("data-" + a);
+      if (v) el.setAttribute(a, v);
+    }
     const src = div.getAttribute("data-src");
     const raw = div.getAttribute("data-design") || div.getAttribute("data-stagewright");
     const text = raw ? raw : div.textContent.trim();

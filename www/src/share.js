@@ -9,6 +9,18 @@ import { asFieldError } from "./engine.js";
 /** Where this script was loaded from, if known: read while it runs. */
 const SCRIPT_URL = (document.currentScript && document.currentScript.src) || "";
 
+/** Shown by a recipe-1 element until the script runs. */
+export const FALLBACK_TEXT = "<p>The Stagewright calculator appears here when stagewright.js has loaded " +
+  "(under a Content-Security-Policy, its script-src must allow that script and 'wasm-unsafe-eval').</p>";
+
+/** The host page's listener of the framed page's height messages. */
+export const FRAME_LISTENER = 'addEventListener("message", (e) => {\n' +
+  '  if (!e.data || e.data.stagewright !== "height") return;\n' +
+  '  for (const f of document.querySelectorAll("iframe.stagewright")) {\n' +
+  '    if (f.contentWindow === e.source) f.style.height = e.data.height + "px";\n' +
+  '  }\n' +
+  '});';
+
 /** The Share panel's methods, mixed into the element (element.js). */
 export const withShare = (Base) => class extends Base {
   _buildShare() {
@@ -49,7 +61,7 @@ export const withShare = (Base) => class extends Base {
       h("h4", null, "Put this calculator in a wiki page"),
       h("p", { class: "hint" }, "Replace the file locations with wherever you keep stagewright.js or stagewright.html."),
       snippetBlock("script", "1. Script and element.", "Load the script once per page, then place elements."),
-      snippetBlock("iframe", "2. Frame.", "Shows the standalone page; no script on your page."),
+      snippetBlock("iframe", "2. Frame.", "Shows the standalone page; the short script sizes the frame to its content (leave it out for a fixed 1500 px)."),
       snippetBlock("div", "3. Placeholder.", "For wikis that remove unknown tags: the script turns each such div into a calculator."),
       h("p", { class: "hint" }, "A page with a Content-Security-Policy needs this in its policy for ways 1 and 3:"),
       h("code", { class: "csp" }, "Content-Security-Policy: script-src 'self' 'wasm-unsafe-eval'"));
@@ -76,12 +88,20 @@ export const withShare = (Base) => class extends Base {
     const scriptUrl = this.getAttribute("script-url") || SCRIPT_URL || "stagewright.js";
     const pageUrl = this.getAttribute("share-url") || (this.hasAttribute("page") ? location.href.split("#")[0] : "stagewright.html");
     const title = typeof design.title === "string" && design.title ? design.title : "amplifier stage";
+    // Recipe 1 inside a <div>: Markdown processors pass an HTML block
+    // through untouched, where they would wrap the element's tags in <p>.
+    // The text inside the element shows only until the script has run,
+    // so a page whose script is missing or blocked says so in place.
     this._snippets.script.value =
       `<script src="${escapeAttr(scriptUrl)}"></script>\n` +
-      `<stagewright-calc>\n<script type="application/json">\n${jsonForScript(design)}\n</script>\n</stagewright-calc>`;
+      `<div class="stagewright">\n<stagewright-calc>\n${FALLBACK_TEXT}\n` +
+      `<script type="application/json">\n${jsonForScript(design)}\n</script>\n</stagewright-calc>\n</div>`;
+    // The standalone page posts its height to the frame's parent; the
+    // listener sizes the frame to it (without it the frame keeps 1500 px).
     this._snippets.iframe.value =
-      `<iframe src="${escapeAttr(pageUrl)}#design=${encodeDesign(design)}" title="Stagewright: ${escapeAttr(title)}" ` +
-      `width="100%" height="1500" loading="lazy" style="border:0"></iframe>`;
+      `<iframe class="stagewright" src="${escapeAttr(pageUrl)}#design=${encodeDesign(design)}" title="Stagewright: ${escapeAttr(title)}" ` +
+      `width="100%" height="1500" loading="lazy" style="border:0"></iframe>\n` +
+      `<script>\n${FRAME_LISTENER}\n</script>`;
     this._snippets.div.value =
       `<div data-stagewright data-design="${encodeDesign(design)}"></div>\n` +
       `<script src="${escapeAttr(scriptUrl)}"></script>`;

@@ -1,19 +1,23 @@
-/* The offline designer's views, on top of the element: "from
- * requirements" (spec.js) and tolerances (tolerance.js), built at the end
- * of the results column. Only in the designer (src/designer.js), whose
- * engine has the cargo feature `extras`; the calculator leaves them out
- * for its size budget (DEVELOPERS.md, "Size"). */
+/* The views beside the calculator: "from requirements" (spec.js) and
+ * tolerances (tolerance.js), each a tab of the element (element.js builds
+ * the tab bar), built the first time it is shown. */
 
 import { withSpecView } from "./spec.js";
 import { withToleranceView } from "./tolerance.js";
 
-/** The element with both views (src/designer.js defines it). */
+/** The element with every view (src/main.js defines it). */
 export const withViews = (Base) => class extends withToleranceView(withSpecView(Base)) {
-  /** Builds both views at the end of the results column. */
-  _buildViews(column) {
-    this._specView = this._buildSpecView();
-    this._tolView = this._buildToleranceView();
-    column.append(this._specView, this._tolView);
-    if (this._api) this._fillSpecPresets(this._api);
+  _viewDefs() {
+    return [...super._viewDefs(), ["requirements", "From requirements"], ["tolerances", "Tolerances"]];
+  }
+
+  _buildView(name) {
+    if (name === "requirements") {
+      const view = this._buildSpecView();
+      if (this._api) this._fillSpecPresets(this._api);
+      return view;
+    }
+    if (name === "tolerances") return this._buildToleranceView();
+    return super._buildView(name);
   }
 };

@@ -66,8 +66,8 @@ export const withSpecView = (Base) => class extends Base {
     run.addEventListener("click", () => this.designFromSpec());
     this._specError = h("p", { class: "spec-error", role: "alert", hidden: true });
     this._specOut = h("div", { class: "spec-out" });
-    const view = h("details", { class: "card view-spec", "data-view": "spec" },
-      h("summary", null, h("h3", { id: id("h-spec") }, "From requirements")),
+    const view = h("section", { class: "card view-spec", "aria-labelledby": id("h-spec") },
+      h("h3", { id: id("h-spec") }, "From requirements"),
       h("p", { class: "hint" }, "Give what the stage must meet; the engine designs it (as stagewright design SPEC does) and snaps every part to a standard value."),
       form,
       h("details", { class: "spec-json-box" }, h("summary", null, "Specification (JSON, stagewright-spec/1)"), h("label", { for: id("spec-json"), class: "visually-hidden" }, "specification JSON"), this._specJson),
@@ -104,6 +104,7 @@ export const withSpecView = (Base) => class extends Base {
    * message shown in place. */
   designFromSpec(spec) {
     const api = this._api;
+    if (!this._specOut) this._viewPanel("requirements");
     if (!this._specOut) return null;
     this._specOut.textContent = "";
     this._specError.hidden = true;
@@ -157,6 +158,7 @@ export const withSpecView = (Base) => class extends Base {
     const load = h("button", { type: "button", class: "primary", "data-action": "load-spec-design" }, "Load this design into the calculator");
     load.addEventListener("click", () => {
       this._loadDesign(r.design, false);
+      this.showView("calculator");
       this._frame.scrollIntoView({ block: "start" });
     });
     this._specOut.append(

@@ -41,8 +41,8 @@ export const withToleranceView = (Base) => class extends Base {
     this._tolHistBox = h("figure", { class: "hist-box", hidden: true },
       h("figcaption", null, h("label", { for: id("tol-hist") }, "Histogram of "), this._tolHistPick),
       this._tolHist, h("details", { class: "plot-numbers" }, h("summary", null, "Show numbers"), this._tolHistTable));
-    return h("details", { class: "card view-tol", "data-view": "tolerance" },
-      h("summary", null, h("h3", { id: id("h-tol") }, "Tolerances")),
+    return h("section", { class: "card view-tol", "aria-labelledby": id("h-tol") },
+      h("h3", { id: id("h-tol") }, "Tolerances"),
       h("p", { class: "hint" }, "Worst case over the tolerance box (the design's tolerances block, or the defaults), the sensitivities and a seeded Monte Carlo run, as stagewright check --worst-case --monte-carlo N --seed S gives them."),
       h("p", { class: "tol-inputs" },
         h("label", { for: id("tol-n") }, "trials N "), this._tolTrials,
@@ -57,6 +57,7 @@ export const withToleranceView = (Base) => class extends Base {
    * share in ms: `setup` (the vertices and sensitivities), `trials` (the
    * run_chunk calls summed), `summary`, `chunks` (how many calls). */
   runTolerance(trials, seed) {
+    if (!this._tolOut) this._viewPanel("tolerances");
     const api = this._api;
     if (trials !== undefined) this._tolTrials.value = String(trials);
     if (seed !== undefined) this._tolSeed.value = String(seed);

@@ -1,10 +1,11 @@
-// The offline designer, dist/stagewright-designer.html (and its script,
-// dist/stagewright-designer.js): the calculator with the "from requirements"
-// and tolerance views. scripts/build-web.sh builds it beside the calculator
-// every time; a missing file fails these tests, it is never skipped.
+// The views of the one element (dist/stagewright.html and
+// dist/stagewright.js): calculator, "from requirements" and tolerances, as
+// tabs at the top, each built the first time it is shown. A missing file
+// fails these tests, it is never skipped.
 //
-// - the files exist; the page's report equals `stagewright analyze FILE
-//   --json` for an example, as the calculator's does;
+// - the former second deliverable is not built; the tabs, their order and
+//   lazy building; the page's report equals `stagewright analyze FILE
+//   --json` for an example;
 // - the design of every examples/specs/*.spec.json equals `stagewright
 //   design SPEC --json` (the same core function, JSON through the browser);
 // - an unmeetable specification shows the core's message in place;
@@ -12,19 +13,18 @@
 //   `stagewright check FILE --monte-carlo N --seed S --json` (exact, or
 //   1e-12 relative), and the worst-vertex verdicts agree;
 // - the script alone, on a page with the CSP `script-src 'self'
-//   'wasm-unsafe-eval'`, has both views;
+//   'wasm-unsafe-eval'`, has every view;
 // - no network request anywhere; screenshots of each view in artifacts/
-//   (designer-*.png). Timings are bench.mjs's.
+//   (views-*.png). Timings are bench.mjs's.
 
 import assert from "node:assert/strict";
 import { execFileSync } from "node:child_process";
 import { existsSync, mkdirSync, readdirSync, readFileSync } from "node:fs";
 import path from "node:path";
 import { test } from "node:test";
-import { pathToFileURL } from "node:url";
 
 import {
-  artifacts, cliReport, designerHtml, designerScriptPath, jsonDifferences, launch, networkRequests, root, waitReady, waitReport,
+  artifacts, cliReport, htmlUrl, jsonDifferences, launch, networkRequests, root, scriptPath, waitReady, waitReport,
 } from "./helpers.mjs";
 
 const bin = path.join(root, "target", "release", "stagewright");
@@ -46,19 +46,19 @@ function close(a, b) {
 
 async function open(b) {
   const page = await b.page();
-  assert.ok(existsSync(designerHtml), `${path.relative(root, designerHtml)} is missing (${BUILD})`);
-  await page.goto(pathToFileURL(designerHtml).href);
+  assert.ok(existsSync(scriptPath), `${path.relative(root, scriptPath)} is missing (${BUILD})`);
+  await page.goto(htmlUrl);
   await waitReady(page);
   return page;
 }
 
-test("designer: both files were built", () => {
-  for (const f of [designerHtml, designerScriptPath]) {
-    assert.ok(existsSync(f), `${path.relative(root, f)} is missing (${BUILD})`);
+test("views: one deliverable; the second one is gone", () => {
+  for (const f of ["stagewright-designer.html", "stagewright-designer.js"]) {
+    assert.ok(!existsSync(path.join(root, "dist", f)), `dist/${f} should no longer be built`);
   }
 });
 
-test("designer: the report equals the command line's, with both views on the page", async () => {
+test("views: the report equals the command line's; the tabs are at the top and build a view when first opened", async () => {
   const b = await launch();
   try {
     const page = await open(b);
@@ -67,15 +67,30 @@ test("designer: the report equals the command line's, with both views on the pag
     const seen = await page.evaluate((t) => {
       const el = document.querySelector("stagewright-calc");
       el.design = t;
-      const views = Array.from(el.shadowRoot.querySelectorAll("[data-view]"), (v) => v.getAttribute("data-view"));
-      return { report: el.report, views, title: document.title };
+      const tabs = Array.from(el.shadowRoot.querySelectorAll("[role=tab]"), (v) => v.getAttribute("data-view"));
+      const built = () => Array.from(el.shadowRoot.querySelectorAll(".view-panel"), (v) => v.getAttribute("data-view"));
+      const before = built();
+      const tabTop = el.shadowRoot.querySelector("[role=tablist]").getBoundingClientRect().top;
+      el.shadowRoot.querySelector("[role=tab][data-view=tolerances]").click();
+      const shown = el.view;
+      const hidden = el.shadowRoot.querySelector(".view-panel[data-view=calculator]").hidden;
+      el.showView("calculator");
+      return { report: el.report, tabs, before, after: built(), shown, hidden, tabTop, title: document.title };
     }, readFileSync(file, "utf8"));
     const diffs = jsonDifferences(seen.report, cliReport(file));
     assert.deepEqual(diffs, [], `differences:\n${diffs.slice(0, 20).join("\n")}`);
-    assert.ok(seen.views.includes("spec") && seen.views.includes("tolerance"), `views: ${seen.views.join(", ")}`);
-    assert.match(seen.title, /Stagewright designer$/);
+    // Every view is a tab, in this order; only the calculator is built at
+    // start-up, and a tab builds its view when first opened.
+    assert.deepEqual(seen.tabs, ["calculator", "requirements", "tolerances"]);
+    assert.deepEqual(seen.before, ["calculator"]);
+    assert.deepEqual(seen.after.sort(), ["calculator", "tolerances"]);
+    assert.equal(seen.shown, "tolerances");
+    assert.equal(seen.hidden, true, "the calculator's panel is hidden while another view is shown");
+    // Near the top: under the header, within the first screen (not below the plots).
+    assert.ok(seen.tabTop < 200, `the tab bar starts ${seen.tabTop} px down`);
+    assert.match(seen.title, /Stagewright$/);
     await page.evaluate(() => window.scrollTo(0, 0));
-    await page.screenshot({ path: path.join(artifacts, "designer-page.png"), fullPage: true });
+    await page.screenshot({ path: path.join(artifacts, "views-calculator.png"), fullPage: true });
     assert.deepEqual(networkRequests(b.requests), []);
     assert.deepEqual(b.errors, []);
   } finally {
@@ -83,7 +98,7 @@ test("designer: the report equals the command line's, with both views on the pag
   }
 });
 
-test("designer: designs from specifications as the command line does", async () => {
+test("views: from requirements designs as the command line does", async () => {
   const b = await launch();
   try {
     const page = await open(b);
@@ -93,13 +108,13 @@ test("designer: designs from specifications as the command line does", async () 
       const expected = JSON.parse(cli(["design", file, "--json"]));
       const got = await page.evaluate((text) => {
         const el = document.querySelector("stagewright-calc");
-        el.shadowRoot.querySelector("[data-view=spec]").open = true;
+        el.showView("requirements");
         return el.designFromSpec(text);
       }, readFileSync(file, "utf8"));
       assert.deepEqual(got, expected, name);
     }
-    await page.evaluate(() => document.querySelector("stagewright-calc").shadowRoot.querySelector("[data-view=spec]").scrollIntoView());
-    await page.screenshot({ path: path.join(artifacts, "designer-from-requirements.png"), fullPage: false });
+    await page.evaluate(() => window.scrollTo(0, 0));
+    await page.screenshot({ path: path.join(artifacts, "views-requirements.png"), fullPage: true });
     // Unmeetable: the core's explanation, in place.
     const spec = JSON.parse(readFileSync(path.join(dir, "line-driver.spec.json"), "utf8"));
     spec.requirements.min_swing = 9;
@@ -113,15 +128,16 @@ test("designer: designs from specifications as the command line does", async () 
     assert.equal(message.hidden, false);
     assert.match(message.text, /^requirements\.min_swing: 9 V peak is more than the supply allows/);
     await page.evaluate(() => document.querySelector("stagewright-calc").shadowRoot.querySelector(".view-spec .spec-error").scrollIntoView({ block: "center" }));
-    await page.screenshot({ path: path.join(artifacts, "designer-unmeetable.png") });
+    await page.screenshot({ path: path.join(artifacts, "views-unmeetable.png") });
     // Load the snapped design into the calculator.
     const loaded = await page.evaluate((text) => {
       const el = document.querySelector("stagewright-calc");
       const r = el.designFromSpec(text);
       el.shadowRoot.querySelector("[data-action=load-spec-design]").click();
-      return { want: r.design, have: el.design };
+      return { want: r.design, have: el.design, view: el.view };
     }, readFileSync(path.join(dir, "line-driver.spec.json"), "utf8"));
     assert.equal(loaded.have.parts.r1, loaded.want.parts.r1);
+    assert.equal(loaded.view, "calculator", "loading the design shows the calculator");
     assert.deepEqual(networkRequests(b.requests), []);
     assert.deepEqual(b.errors, []);
   } finally {
@@ -129,7 +145,7 @@ test("designer: designs from specifications as the command line does", async () 
   }
 });
 
-test("designer: the same seed gives the command line's Monte Carlo", async () => {
+test("views: the same seed gives the command line's Monte Carlo", async () => {
   const b = await launch();
   try {
     const page = await open(b);
@@ -140,7 +156,7 @@ test("designer: the same seed gives the command line's Monte Carlo", async () =>
       const got = await page.evaluate(async ([text, n, s]) => {
         const el = document.querySelector("stagewright-calc");
         el.design = JSON.parse(text);
-        el.shadowRoot.querySelector("[data-view=tolerance]").open = true;
+        el.showView("tolerances");
         return el.runTolerance(n, s);
       }, [readFileSync(file, "utf8"), trials, seed]);
       const mc = want.monte_carlo;
@@ -160,10 +176,10 @@ test("designer: the same seed gives the command line's Monte Carlo", async () =>
         assert.deepEqual(diffs, [], `${name}: ${key} differs from check --json:\n${diffs.slice(0, 10).join("\n")}`);
       }
     }
-    await page.evaluate(() => document.querySelector("stagewright-calc").shadowRoot.querySelector("[data-view=tolerance]").scrollIntoView());
-    await page.screenshot({ path: path.join(artifacts, "designer-tolerance.png") });
+    await page.evaluate(() => window.scrollTo(0, 0));
+    await page.screenshot({ path: path.join(artifacts, "views-tolerances.png"), fullPage: true });
     await page.evaluate(() => document.querySelector("stagewright-calc").shadowRoot.querySelector(".hist-box").scrollIntoView());
-    await page.screenshot({ path: path.join(artifacts, "designer-histogram.png") });
+    await page.screenshot({ path: path.join(artifacts, "views-histogram.png") });
     assert.deepEqual(networkRequests(b.requests), []);
     assert.deepEqual(b.errors, []);
   } finally {
@@ -171,7 +187,7 @@ test("designer: the same seed gives the command line's Monte Carlo", async () =>
   }
 });
 
-test("designer: a long Monte Carlo run can be cancelled, and the trial limit is the command line's", async () => {
+test("views: a long Monte Carlo run can be cancelled, and the trial limit is the command line's", async () => {
   const b = await launch();
   try {
     const page = await open(b);
@@ -180,7 +196,7 @@ test("designer: a long Monte Carlo run can be cancelled, and the trial limit is 
     const over = await page.evaluate(async (text) => {
       const el = document.querySelector("stagewright-calc");
       el.design = text;
-      el.shadowRoot.querySelector("[data-view=tolerance]").open = true;
+      el.showView("tolerances");
       await el.runTolerance(2000000, 1);
       return el.shadowRoot.querySelector(".view-tol .spec-error").textContent;
     }, readFileSync(file, "utf8"));
@@ -203,30 +219,30 @@ test("designer: a long Monte Carlo run can be cancelled, and the trial limit is 
   }
 });
 
-test("designer: the script alone, under a strict CSP, has both views", async () => {
+test("views: the script alone, under a strict CSP, has every view", async () => {
   const ORIGIN = "https://wiki.example";
-  const script = readFileSync(designerScriptPath);
+  const script = readFileSync(scriptPath);
   const spec = readFileSync(path.join(root, "examples", "specs", "geophone-preamp.spec.json"), "utf8");
   const b = await launch({ viewport: { width: 1280, height: 900 } });
   try {
     await b.context.route(`${ORIGIN}/**`, (route) => {
       const url = new URL(route.request().url());
-      if (url.pathname === "/stagewright-designer.js") {
+      if (url.pathname === "/stagewright.js") {
         return route.fulfill({ status: 200, contentType: "text/javascript", body: script });
       }
       return route.fulfill({
         status: 200,
         headers: { "content-type": "text/html; charset=utf-8", "content-security-policy": "script-src 'self' 'wasm-unsafe-eval'" },
         body: '<!doctype html><html lang="en"><head><meta charset="utf-8"><title>Designer</title>' +
-          '<script src="/stagewright-designer.js"></script></head><body><stagewright-calc></stagewright-calc></body></html>',
+          '<script src="/stagewright.js"></script></head><body><stagewright-calc></stagewright-calc></body></html>',
       });
     });
     const page = await b.page();
-    await page.goto(`${ORIGIN}/designer.html`);
+    await page.goto(`${ORIGIN}/views.html`);
     await waitReady(page);
     const r = await page.evaluate((text) => {
       const el = document.querySelector("stagewright-calc");
-      el.shadowRoot.querySelector("[data-view=spec]").open = true;
+      el.showView("requirements");
       return el.designFromSpec(text);
     }, spec);
     assert.deepEqual(r, JSON.parse(cli(["design", path.join(root, "examples", "specs", "geophone-preamp.spec.json"), "--json"])));
