@@ -253,3 +253,107 @@ test("views: the script alone, under a strict CSP, has every view", async () => 
     await b.close();
   }
 });
+
+test("views: the tolerance box is editable, the results name their design and box, and go stale on an edit", async () => {
+  const b = await launch();
+  try {
+    const page = await open(b);
+    const file = path.join(root, "examples", "transducer-gain-stage.json");
+    const text = readFileSync(file, "utf8");
+    const first = await page.evaluate(async (t) => {
+      const el = document.querySelector("stagewright-calc");
+      el.design = t;
+      el.showView("tolerances");
+      const root = el.shadowRoot;
+      const box = root.querySelector(".tol-box input[data-key=resistor_tolerance]");
+      // Refused by the core's reader, with its message beside the field.
+      box.value = "5";
+      box.dispatchEvent(new Event("input", { bubbles: true }));
+      const refused = root.querySelector("#" + box.getAttribute("aria-describedby")).textContent;
+      const kept = el.design.tolerances && el.design.tolerances.resistor_tolerance;
+      box.value = "1 %";
+      box.dispatchEvent(new Event("input", { bubbles: true }));
+      const r = await el.runTolerance(500, "7");
+      return {
+        refused, kept, stored: el.design.tolerances.resistor_tolerance, used: r.report.tolerances.resistor_tolerance,
+        heading: root.querySelector(".tol-for").textContent, stale: r.stale, notice: root.querySelector(".tol-stale").hidden,
+      };
+    }, text);
+    assert.match(first.refused, /resistor_tolerance/, "a bare 5 is refused (README: read as 500 % otherwise), naming the key");
+    assert.equal(first.stored, "1 %", "the accepted value is kept in the design file's tolerances block as typed");
+    assert.ok(Math.abs(first.used - 0.01) < 1e-15, "the run used the edited box (1 % = 0.01)");
+    assert.match(first.heading, /^For “[^”]+” \(common emitter\), with the tolerance box: resistors ±1 %, capacitors ±/);
+    assert.equal(first.stale, false);
+    assert.equal(first.notice, true, "no stale notice right after a run");
+    // An edit in the calculator: the results are marked stale at once.
+    const after = await page.evaluate(() => {
+      const el = document.querySelector("stagewright-calc");
+      el.showView("calculator");
+      const rc = el.shadowRoot.querySelector("input[name=rc]");
+      rc.value = "4k7";
+      rc.dispatchEvent(new Event("input", { bubbles: true }));
+      el.showView("tolerances");
+      const root = el.shadowRoot;
+      return { stale: el.toleranceResult.stale, notice: root.querySelector(".tol-stale").hidden, text: root.querySelector(".tol-stale").textContent, dim: root.querySelector(".tol-out").classList.contains("stale") };
+    });
+    assert.deepEqual([after.stale, after.notice, after.dim], [true, false, true], "stale after the design changed");
+    assert.match(after.text, /The design has changed since this run/);
+    await page.evaluate(() => window.scrollTo(0, 0));
+    await page.screenshot({ path: path.join(artifacts, "views-tolerances-stale.png"), fullPage: true });
+    // Undone: fresh again.
+    const undone = await page.evaluate((rc) => {
+      const el = document.querySelector("stagewright-calc");
+      const input = el.shadowRoot.querySelector("input[name=rc]");
+      input.value = rc;
+      input.dispatchEvent(new Event("input", { bubbles: true }));
+      return el.toleranceResult.stale;
+    }, JSON.parse(text).parts.rc);
+    assert.equal(undone, false, "the same design as the run's is not stale");
+    assert.deepEqual(b.errors, []);
+  } finally {
+    await b.close();
+  }
+});
+
+test("views: from requirements keeps keys typed into its JSON through form edits; pinned parts in either case", async () => {
+  const b = await launch();
+  try {
+    const page = await open(b);
+    const got = await page.evaluate(() => {
+      const el = document.querySelector("stagewright-calc");
+      el.showView("requirements");
+      const root = el.shadowRoot;
+      const json = root.querySelector(".spec-json");
+      const doc = JSON.parse(json.value);
+      doc.resistor_rating = 0.5;
+      doc.ambient = 40;
+      doc.title = "Sensor front end";
+      json.value = JSON.stringify(doc, null, 2);
+      json.dispatchEvent(new Event("input", { bubbles: true }));
+      const title = root.querySelector(".spec-form [data-key=title]").value;
+      const supply = root.querySelector(".spec-form [data-key=supply]");
+      supply.value = "15";
+      supply.dispatchEvent(new Event("input", { bubbles: true }));
+      const pins = root.querySelector(".spec-form [data-key=pins]");
+      pins.value = "RE=470, c_in=1u";
+      pins.dispatchEvent(new Event("input", { bubbles: true }));
+      const after = JSON.parse(json.value);
+      pins.value = "RE470";
+      pins.dispatchEvent(new Event("input", { bubbles: true }));
+      const refused = root.querySelector(".spec-form-error");
+      return { title, after, refusedHidden: refused.hidden, refused: refused.textContent, unchanged: JSON.parse(json.value).parts };
+    });
+    assert.equal(got.title, "Sensor front end", "the form shows what the JSON says");
+    assert.equal(got.after.resistor_rating, 0.5, "a key with no form field survives a form edit");
+    assert.equal(got.after.ambient, 40);
+    assert.equal(got.after.title, "Sensor front end");
+    assert.equal(got.after.supply, 15, "the form's edit is written");
+    assert.deepEqual(got.after.parts, { re: "470", c_in: "1u" }, "RE=470 is the part re");
+    assert.equal(got.refusedHidden, false);
+    assert.match(got.refused, /"RE470" is not a part and its value/);
+    assert.deepEqual(got.unchanged, { re: "470", c_in: "1u" }, "a refused entry leaves the document as it was");
+    assert.deepEqual(b.errors, []);
+  } finally {
+    await b.close();
+  }
+});

@@ -362,8 +362,15 @@ export class StagewrightCalc extends withShare(withPlots(withResults(withDiagram
     this._clearResults();
     this._setBanner("");
     this._fillForm();
+    this._onDesignLoaded();
     this._recompute();
   }
+
+  /** Hooks for the views: a design was loaded (its fields to fill), the
+   * design changed (results computed from an earlier one are stale). */
+  _onDesignLoaded() {}
+
+  _onDesignChanged() {}
 
   _showLoadError(message) {
     this._setBanner(message, "error");
@@ -719,6 +726,7 @@ export class StagewrightCalc extends withShare(withPlots(withResults(withDiagram
     this._renderDiagram();
     const design = this._exportDesign();
     this._emit("stagewright-design", { design });
+    this._onDesignChanged(design);
     const api = this._api;
     if (!api) return;
     this._clearAnalysisErrors();

@@ -100,7 +100,7 @@ export const GROUPS = [
 
 const ALL_FIELDS = GROUPS.flatMap((g) => g.fields);
 export const FIELD_BY_KEY = new Map(ALL_FIELDS.map((f) => [f.key, f]));
-export const TOP_ORDER = ["format", "title", "notes", "stage", "supply", "ambient", "transistor", "parts", "requirements"];
+export const TOP_ORDER = ["format", "title", "notes", "stage", "supply", "ambient", "transistor", "parts", "requirements", "tolerances"];
 
 export const SERIES_CHOICES = ["E3", "E6", "E12", "E24", "E48", "E96", "E192"];
 

@@ -1,102 +1,217 @@
-/* The designer's "from requirements" view: a specification form and its
+/* The "from requirements" view: a specification form and its
  * stagewright-spec/1 text, designed by the engine (design_from_spec, as
  * `stagewright design` does), the ideal and standard values side by side,
  * and a button that loads the design into the calculator. */
 
 import { h } from "../dom.js";
+import { getPath, setPath, storedValue } from "../design.js";
 import { asFieldError, enginePresets } from "../engine.js";
 import { STAGES } from "../schema.js";
+
+/** The specification's fields: key in the form, path in the
+ * stagewright-spec/1 document, label, default shown, hint; kind "select"
+ * with its options. The JSON box is the source of truth: a form edit
+ * writes only its own key into the document, so keys the form has no
+ * field for (typed into the box) survive every edit. */
+const SPEC_FIELDS = [
+  { group: "Stage" },
+  { key: "title", path: ["title"], label: "title", value: "", hint: "names the design it makes" },
+  { key: "stage", path: ["stage"], label: "stage", kind: "select", options: STAGES, value: "common-emitter" },
+  { key: "preset", path: ["transistor", "preset"], label: "transistor", kind: "select", options: [["general-purpose-npn", "general-purpose-npn"]], value: "general-purpose-npn" },
+  { key: "polarity", path: ["transistor", "polarity"], label: "polarity", kind: "select", options: [["", "from the class"], ["npn", "NPN"], ["pnp", "PNP"]], value: "" },
+  { key: "supply", path: ["supply"], label: "supply", value: "12", hint: "V" },
+  { key: "ambient", path: ["ambient"], label: "ambient", value: "", hint: "°C, default 25" },
+  { key: "rs", path: ["rs"], label: "source resistance", value: "600", hint: "Ω" },
+  { key: "rl", path: ["rl"], label: "load resistance", value: "10k", hint: "Ω" },
+  { key: "resistor_rating", path: ["resistor_rating"], label: "resistor rating", value: "", hint: "W, default 0.25" },
+  { group: "Requirements" },
+  { key: "min_voltage_gain_db", path: ["requirements", "min_voltage_gain_db"], label: "min. voltage gain", value: "20", hint: "dB" },
+  { key: "max_voltage_gain_db", path: ["requirements", "max_voltage_gain_db"], label: "max. voltage gain", value: "", hint: "dB" },
+  { key: "min_input_impedance", path: ["requirements", "min_input_impedance"], label: "min. input impedance", value: "", hint: "Ω" },
+  { key: "max_output_impedance", path: ["requirements", "max_output_impedance"], label: "max. output impedance", value: "", hint: "Ω" },
+  { key: "min_swing", path: ["requirements", "min_swing"], label: "min. swing (peak)", value: "", hint: "V" },
+  { key: "max_f_low", path: ["requirements", "max_f_low"], label: "max. lower corner", value: "20", hint: "Hz" },
+  { key: "min_f_high", path: ["requirements", "min_f_high"], label: "min. upper corner", value: "", hint: "Hz" },
+  { key: "max_supply_current", path: ["requirements", "max_supply_current"], label: "max. supply current", value: "", hint: "A" },
+  { key: "max_junction_temperature", path: ["requirements", "max_junction_temperature"], label: "max. junction temperature", value: "", hint: "°C" },
+  { group: "Intents" },
+  { key: "bias", label: "bias", kind: "select", options: [["max-swing", "max-swing"], ["ic", "given IC"], ["vce", "given |VCE|"]], value: "max-swing" },
+  { key: "bias_value", label: "IC or |VCE|", value: "", hint: "A or V, for a given point" },
+  { key: "saturation_reserve", path: ["saturation_reserve"], label: "saturation reserve", value: "", hint: "V, default 0.5" },
+  { key: "stiffness", path: ["stiffness"], label: "stiffness k", value: "", hint: "RTH = k·hFE(min)·RE, default 0.1" },
+  { key: "emitter_fraction", path: ["emitter_fraction"], label: "emitter fraction", value: "", hint: "share of the supply across RE, default 0.1" },
+  { key: "resistors", path: ["series", "resistors"], label: "resistor series", kind: "select", options: [["E12", "E12"], ["E24", "E24"], ["E96", "E96"]], value: "E24" },
+  { key: "capacitors", path: ["series", "capacitors"], label: "capacitor series", kind: "select", options: [["E6", "E6"], ["E12", "E12"]], value: "E12" },
+  { key: "pins", label: "pinned parts", value: "", hint: "e.g. rc=4k7, RE=470, c_in=1u" },
+];
+
+/** Pinned parts as typed ("rc=4k7, RE=470"): {parts} or {error}. Names
+ * are read in either case; anything not `name=value` is refused with
+ * the item quoted. */
+export function readPins(text) {
+  const parts = {};
+  for (const item of text.split(/[,;\s]+/).filter(Boolean)) {
+    const m = /^([A-Za-z_][A-Za-z0-9_]*)\s*[=:]\s*(.+)$/.exec(item);
+    if (!m) return { error: `pinned parts: "${item}" is not a part and its value, as rc=4k7` };
+    parts[m[1].toLowerCase()] = m[2];
+  }
+  return { parts };
+}
+
+/** Pinned parts written back for the field: "rc=4k7, c_in=1u". */
+function writePins(parts) {
+  if (!parts || typeof parts !== "object") return "";
+  return Object.entries(parts).map(([k, v]) => `${k}=${v}`).join(", ");
+}
 
 /** The view's methods; views/index.js mixes them into the element. */
 export const withSpecView = (Base) => class extends Base {
   /** The spec form's transistor menu, from the engine's presets. */
   _fillSpecPresets(api) {
     const sel = this._specInputs.preset;
+    const current = sel.value || "general-purpose-npn";
     sel.textContent = "";
     for (const [v, t] of enginePresets(api)) sel.append(h("option", { value: v }, t));
-    sel.value = "general-purpose-npn";
+    if (!Array.from(sel.options).some((o) => o.value === current)) sel.append(h("option", { value: current }, current));
+    sel.value = current;
   }
 
-  /** The "from requirements" view: a specification form (and its JSON),
-   * designed by the engine's design_from_spec, the ideal and standard
-   * values side by side, and a button that loads the design. */
+  /** The "from requirements" view: a specification form and its JSON
+   * (the source of truth), designed by the engine's design_from_spec, the
+   * ideal and standard values side by side, and a button that loads the
+   * design. */
   _buildSpecView() {
     const id = this._id;
-    const field = (key, label, value, hint) => {
-      const input = h("input", { type: "text", id: id("spec-" + key), value: value || "", autocomplete: "off", spellcheck: "false" });
-      this._specInputs[key] = input;
-      return h("div", { class: "spec-field" }, h("label", { for: id("spec-" + key) }, label), input, hint ? h("span", { class: "hint" }, hint) : null);
-    };
-    const select = (key, label, options, value) => {
-      const input = h("select", { id: id("spec-" + key) }, ...options.map(([v, t]) => h("option", { value: v }, t)));
-      input.value = value;
-      this._specInputs[key] = input;
-      return h("div", { class: "spec-field" }, h("label", { for: id("spec-" + key) }, label), input);
-    };
     this._specInputs = {};
-    const form = h("form", { class: "spec-form", novalidate: true },
-      h("fieldset", null, h("legend", null, "Stage"),
-        select("stage", "stage", STAGES, "common-emitter"),
-        select("preset", "transistor", [["general-purpose-npn", "general-purpose-npn"]], "general-purpose-npn"),
-        field("supply", "supply", "12", "V"),
-        field("rs", "source resistance", "600", "Ω"),
-        field("rl", "load resistance", "10k", "Ω")),
-      h("fieldset", null, h("legend", null, "Requirements"),
-        field("min_voltage_gain_db", "min. voltage gain", "20", "dB"),
-        field("max_voltage_gain_db", "max. voltage gain", "", "dB"),
-        field("min_input_impedance", "min. input impedance", "", "Ω"),
-        field("max_output_impedance", "max. output impedance", "", "Ω"),
-        field("min_swing", "min. swing (peak)", "", "V"),
-        field("max_f_low", "max. lower corner", "20", "Hz"),
-        field("min_f_high", "min. upper corner", "", "Hz"),
-        field("max_supply_current", "max. supply current", "", "A")),
-      h("fieldset", null, h("legend", null, "Intents"),
-        select("bias", "bias", [["max-swing", "max-swing"], ["ic", "given IC"], ["vce", "given |VCE|"]], "max-swing"),
-        field("bias_value", "IC or |VCE|", "", "A or V, for a given point"),
-        field("saturation_reserve", "saturation reserve", "", "V, default 0.5"),
-        field("stiffness", "stiffness k", "", "RTH = k·hFE(min)·RE, default 0.1"),
-        select("resistors", "resistor series", [["E12", "E12"], ["E24", "E24"], ["E96", "E96"]], "E24"),
-        select("capacitors", "capacitor series", [["E6", "E6"], ["E12", "E12"]], "E12"),
-        field("pins", "pinned parts", "", "e.g. rc=4k7, c_in=1u")));
+    const form = h("form", { class: "spec-form", novalidate: true });
+    let fs = null;
+    for (const f of SPEC_FIELDS) {
+      if (f.group) {
+        fs = h("fieldset", null, h("legend", null, f.group));
+        form.append(fs);
+        continue;
+      }
+      const fid = id("spec-" + f.key);
+      const input = f.kind === "select"
+        ? h("select", { id: fid, "data-key": f.key }, ...f.options.map(([v, t]) => h("option", { value: v }, t)))
+        : h("input", { type: "text", id: fid, "data-key": f.key, value: f.value || "", autocomplete: "off", spellcheck: "false" });
+      input.value = f.value;
+      this._specInputs[f.key] = input;
+      fs.append(h("div", { class: "spec-field" }, h("label", { for: fid }, f.label), input, f.hint ? h("span", { class: "hint" }, f.hint) : null));
+    }
+    this._specFormError = h("p", { class: "spec-form-error", role: "alert", hidden: true });
     form.addEventListener("submit", (e) => e.preventDefault());
-    form.addEventListener("input", () => this._writeSpecJson());
-    form.addEventListener("change", () => this._writeSpecJson());
-    this._specJson = h("textarea", { class: "spec-json", id: id("spec-json"), rows: 10, spellcheck: "false" });
+    const edited = (e) => {
+      const key = e.target && e.target.getAttribute("data-key");
+      if (key) this._specFieldEdited(key);
+    };
+    form.addEventListener("input", edited);
+    form.addEventListener("change", edited);
+    this._specJson = h("textarea", { class: "spec-json", id: id("spec-json"), rows: 12, spellcheck: "false" });
+    this._specJson.addEventListener("input", () => this._specJsonEdited());
     const run = h("button", { type: "button", class: "primary", "data-action": "design-from-spec" }, "Design from requirements");
     run.addEventListener("click", () => this.designFromSpec());
     this._specError = h("p", { class: "spec-error", role: "alert", hidden: true });
     this._specOut = h("div", { class: "spec-out" });
     const view = h("section", { class: "card view-spec", "aria-labelledby": id("h-spec") },
       h("h3", { id: id("h-spec") }, "From requirements"),
-      h("p", { class: "hint" }, "Give what the stage must meet; the engine designs it (as stagewright design SPEC does) and snaps every part to a standard value."),
+      h("p", { class: "hint" }, "Give what the stage must meet; the engine designs it (as stagewright design SPEC does) and snaps every part to a standard value. The JSON below is the specification itself: keys typed there that the form has no field for are kept."),
       form,
-      h("details", { class: "spec-json-box" }, h("summary", null, "Specification (JSON, stagewright-spec/1)"), h("label", { for: id("spec-json"), class: "visually-hidden" }, "specification JSON"), this._specJson),
+      this._specFormError,
+      h("details", { class: "spec-json-box", open: true }, h("summary", null, "Specification (JSON, stagewright-spec/1)"), h("label", { for: id("spec-json"), class: "visually-hidden" }, "specification JSON"), this._specJson),
       h("p", { class: "actions" }, run),
       this._specError, this._specOut);
-    this._writeSpecJson();
+    // The first document: every field's default.
+    const spec = { format: "stagewright-spec/1" };
+    for (const f of SPEC_FIELDS) if (f.key) this._specPut(spec, f.key);
+    this._specJson.value = JSON.stringify(spec, null, 2);
     return view;
   }
 
-  /** The specification the form describes, as JSON in the text box. */
-  _writeSpecJson() {
-    const v = (k) => this._specInputs[k].value.trim();
-    const spec = { format: "stagewright-spec/1", stage: v("stage"), supply: v("supply"), transistor: { preset: v("preset") }, rs: v("rs"), rl: v("rl") };
-    const req = {};
-    for (const k of ["min_voltage_gain_db", "max_voltage_gain_db", "min_input_impedance", "max_output_impedance", "min_swing", "max_f_low", "min_f_high", "max_supply_current"]) {
-      if (v(k)) req[k] = v(k);
+  /** The specification in the box, or null (with the reason shown). */
+  _specDocument() {
+    try {
+      const doc = JSON.parse(this._specJson.value);
+      if (doc && typeof doc === "object" && !Array.isArray(doc)) return doc;
+      throw new Error("it is not a JSON object");
+    } catch (err) {
+      this._specFormError.textContent = `The specification JSON below does not read (${err.message}): the form's edit was not written into it. Fix the JSON, or clear the box to start again from the form.`;
+      this._specFormError.hidden = false;
+      return null;
     }
-    spec.requirements = req;
-    if (v("bias") !== "max-swing" && v("bias_value")) spec.bias = { [v("bias")]: v("bias_value") };
-    if (v("saturation_reserve")) spec.saturation_reserve = v("saturation_reserve");
-    if (v("stiffness")) spec.stiffness = v("stiffness");
-    spec.series = { resistors: v("resistors"), capacitors: v("capacitors") };
-    const pins = {};
-    for (const item of v("pins").split(/[,;\s]+/)) {
-      const m = /^([a-z_]+)=(.+)$/.exec(item);
-      if (m) pins[m[1]] = m[2];
+  }
+
+  /** Writes one field's value into `doc` (deleting the key when empty). */
+  _specPut(doc, key) {
+    const input = this._specInputs[key];
+    const value = input.value.trim();
+    const f = SPEC_FIELDS.find((x) => x.key === key);
+    if (key === "pins") {
+      const r = readPins(value);
+      if (r.error) return r.error;
+      if (Object.keys(r.parts).length) doc.parts = r.parts;
+      else delete doc.parts;
+      return "";
     }
-    if (Object.keys(pins).length) spec.parts = pins;
-    this._specJson.value = JSON.stringify(spec, null, 2);
+    if (key === "bias" || key === "bias_value") {
+      const kind = this._specInputs.bias.value;
+      const v = this._specInputs.bias_value.value.trim();
+      if (kind === "max-swing") delete doc.bias;
+      else if (v) doc.bias = { [kind]: v };
+      else delete doc.bias;
+      return "";
+    }
+    setPath(doc, f.path, value === "" ? undefined : storedValue(value));
+    // An emptied block goes too.
+    const top = f.path[0];
+    if (f.path.length > 1 && doc[top] && typeof doc[top] === "object" && !Object.keys(doc[top]).length && top !== "requirements") delete doc[top];
+    return "";
+  }
+
+  /** A form edit: that one key, written into the document in the box. */
+  _specFieldEdited(key) {
+    if (this._specJson.value.trim() === "") this._specJson.value = '{ "format": "stagewright-spec/1" }';
+    const doc = this._specDocument();
+    if (!doc) return;
+    const problem = this._specPut(doc, key);
+    if (problem) {
+      this._specFormError.textContent = problem;
+      this._specFormError.hidden = false;
+      return;
+    }
+    this._specFormError.hidden = true;
+    this._specJson.value = JSON.stringify(doc, null, 2);
+  }
+
+  /** A JSON edit: the form shows what the document says (the document
+   * itself is not rewritten). */
+  _specJsonEdited() {
+    let doc;
+    try {
+      doc = JSON.parse(this._specJson.value);
+    } catch (err) {
+      return;
+    }
+    if (!doc || typeof doc !== "object" || Array.isArray(doc)) return;
+    this._specFormError.hidden = true;
+    this._fillSpecForm(doc);
+  }
+
+  _fillSpecForm(doc) {
+    for (const f of SPEC_FIELDS) {
+      if (!f.key) continue;
+      const input = this._specInputs[f.key];
+      let v;
+      if (f.key === "pins") v = writePins(doc.parts);
+      else if (f.key === "bias") v = doc.bias && typeof doc.bias === "object" ? Object.keys(doc.bias)[0] || "max-swing" : "max-swing";
+      else if (f.key === "bias_value") v = doc.bias && typeof doc.bias === "object" ? String(Object.values(doc.bias)[0] ?? "") : "";
+      else v = getPath(doc, f.path);
+      const text = v === undefined || v === null ? "" : String(v);
+      if (input.tagName === "SELECT" && text && !Array.from(input.options).some((o) => o.value === text)) {
+        input.append(h("option", { value: text }, text));
+      }
+      input.value = text;
+    }
   }
 
   /** Designs the specification in the text box (or `spec`, an object or
@@ -117,6 +232,7 @@ export const withSpecView = (Base) => class extends Base {
     if (spec !== undefined) {
       try {
         this._specJson.value = typeof spec === "string" ? spec : JSON.stringify(spec, null, 2);
+        this._specJsonEdited();
       } catch (err) {
         return refuse(`The specification object cannot be written as JSON: ${err.message}`);
       }

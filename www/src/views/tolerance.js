@@ -1,11 +1,24 @@
-/* The designer's tolerance view: the worst case over the tolerance box,
+/* The tolerance view: the worst case over the tolerance box,
  * each requirement at its worst vertex, the sensitivities, and a seeded
  * Monte Carlo run in chunks between frames (yield, percentiles, a
  * histogram with its numbers), as `stagewright check --worst-case
  * --monte-carlo N --seed S` gives them. */
 
+import { clone, getPath, setPath, storedValue } from "../design.js";
 import { h } from "../dom.js";
 import { asFieldError } from "../engine.js";
+import { STAGES } from "../schema.js";
+
+/** The design file's `tolerances` block, field by field: key, label,
+ * unit shown, default (README, "tolerances"). */
+const BOX_FIELDS = [
+  ["resistor_tolerance", "resistors ±", "share", "5 %"],
+  ["capacitor_tolerance", "capacitors ±", "share", "20 %"],
+  ["supply_tolerance", "supply ±", "share", "5 %"],
+  ["vbe_spread", "VBE ±", "V", "0.05"],
+  ["ambient_min", "ambient from", "°C", "0"],
+  ["ambient_max", "ambient to", "°C", "50"],
+];
 
 /** A yield as the command line prints it: never rounded up to 100 %. */
 function yieldText(y) {
@@ -41,13 +54,115 @@ export const withToleranceView = (Base) => class extends Base {
     this._tolHistBox = h("figure", { class: "hist-box", hidden: true },
       h("figcaption", null, h("label", { for: id("tol-hist") }, "Histogram of "), this._tolHistPick),
       this._tolHist, h("details", { class: "plot-numbers" }, h("summary", null, "Show numbers"), this._tolHistTable));
+    // The tolerance box: the design file's tolerances block, edited here.
+    this._boxInputs = {};
+    this._boxErrors = {};
+    const box = h("fieldset", { class: "tol-box" }, h("legend", null, "Tolerance box (the design's tolerances block)"));
+    for (const [key, label, unit, dflt] of BOX_FIELDS) {
+      const fid = id("tol-" + key);
+      const input = h("input", { type: "text", id: fid, "data-key": key, placeholder: dflt, autocomplete: "off", spellcheck: "false" });
+      const error = h("p", { class: "error", hidden: true, id: id("tol-e-" + key) });
+      input.setAttribute("aria-describedby", error.id);
+      input.addEventListener("input", () => this._boxEdited(key));
+      this._boxInputs[key] = input;
+      this._boxErrors[key] = error;
+      box.append(h("div", { class: "tol-box-field" },
+        h("label", { for: fid }, label), input, h("span", { class: "unit" }, unit === "share" ? "" : unit), error));
+    }
+    box.append(h("p", { class: "hint" }, "A share is a fraction (0.01) or a percentage (1 %); empty fields take the default shown. hFE runs over the transistor's own hfe_min to hfe_max (Calculator view)."));
+    this._tolStale = h("p", { class: "tol-stale", role: "status", hidden: true });
+    this._fillBox();
     return h("section", { class: "card view-tol", "aria-labelledby": id("h-tol") },
       h("h3", { id: id("h-tol") }, "Tolerances"),
+      box,
       h("p", { class: "hint" }, "Worst case over the tolerance box (the design's tolerances block, or the defaults), the sensitivities and a seeded Monte Carlo run, as stagewright check --worst-case --monte-carlo N --seed S gives them."),
       h("p", { class: "tol-inputs" },
         h("label", { for: id("tol-n") }, "trials N "), this._tolTrials,
         h("label", { for: id("tol-seed") }, " seed "), this._tolSeed, " ", run, " ", this._tolProgress, " ", this._tolCancel),
-      this._tolError, this._tolOut, this._tolHistBox);
+      this._tolError, this._tolStale, this._tolOut, this._tolHistBox);
+  }
+
+  /** The box's fields from the design's tolerances block. */
+  _fillBox() {
+    if (!this._boxInputs) return;
+    for (const [key] of BOX_FIELDS) {
+      const v = getPath(this._design || {}, ["tolerances", key]);
+      this._boxInputs[key].value = v === undefined || v === null ? "" : String(v);
+      this._boxErrors[key].hidden = true;
+      this._boxInputs[key].removeAttribute("aria-invalid");
+    }
+  }
+
+  /** A box edit: read by the core with the rest of the design (its own
+   * message beside the field when refused), then kept in the design. */
+  _boxEdited(key) {
+    const input = this._boxInputs[key];
+    const error = this._boxErrors[key];
+    const text = input.value.trim();
+    const api = this._api;
+    const trial = clone(this._exportDesign());
+    setPath(trial, ["tolerances", key], text === "" ? undefined : storedValue(text));
+    if (trial.tolerances && !Object.keys(trial.tolerances).length) delete trial.tolerances;
+    let message = "";
+    if (api && typeof api.read_design === "function") {
+      try {
+        api.read_design(JSON.stringify(trial));
+      } catch (err) {
+        const e = asFieldError(err);
+        // Only this field's message: the calculator view shows the others.
+        if (e.field === `tolerances.${key}` || e.field.startsWith("tolerances")) message = e.message;
+      }
+    }
+    error.textContent = message;
+    error.hidden = !message;
+    if (message) {
+      input.setAttribute("aria-invalid", "true");
+      return;
+    }
+    input.removeAttribute("aria-invalid");
+    setPath(this._design, ["tolerances", key], text === "" ? undefined : storedValue(text));
+    if (this._design.tolerances && !Object.keys(this._design.tolerances).length) delete this._design.tolerances;
+    this._isExample = false;
+    this._recompute();
+  }
+
+  _onDesignLoaded() {
+    super._onDesignLoaded();
+    this._fillBox();
+  }
+
+  /** Marks the last run stale when the design differs from the one it
+   * ran on (or fresh again when an edit is undone). */
+  _onDesignChanged(design) {
+    super._onDesignChanged(design);
+    const run = this.toleranceResult;
+    if (!run || !this._tolStale) return;
+    const stale = JSON.stringify(design) !== run.designText;
+    run.stale = stale;
+    this._tolOut.classList.toggle("stale", stale);
+    this._tolHistBox.classList.toggle("stale", stale);
+    this._tolStale.hidden = !stale;
+    if (stale) {
+      this._tolStale.textContent = "";
+      const again = h("button", { type: "button", class: "primary small", "data-action": "rerun-tolerance" }, "Run again");
+      again.addEventListener("click", () => this.runTolerance());
+      this._tolStale.append(`The design has changed since this run: the results below are for “${run.title}” as it was. `, again);
+    }
+  }
+
+  /** "For “title” (stage), with the tolerance box: …", from the report's
+   * tolerances (the ones used: the design's block or the defaults). */
+  _runHeading(design, report) {
+    const api = this._api;
+    const t = report.tolerances || {};
+    const pct = (v) => (typeof v === "number" ? `±${+(v * 100).toFixed(3)} %` : "—");
+    const num = (v, unit) => (typeof v === "number" ? api.format_si(v, unit) : "—");
+    const stage = STAGES.find(([v]) => v === design.stage);
+    const title = typeof design.title === "string" && design.title.trim() ? design.title : "Untitled stage";
+    return h("p", { class: "tol-for" },
+      h("strong", null, `For “${title}”`), ` (${stage ? stage[1] : design.stage}), with the tolerance box: resistors ${pct(t.resistor_tolerance)}, ` +
+      `capacitors ${pct(t.capacitor_tolerance)}, supply ${pct(t.supply_tolerance)}, VBE ±${num(t.vbe_spread, "V")}, ` +
+      `ambient ${num(t.ambient_min, "°C")} to ${num(t.ambient_max, "°C")}, hFE ${t.hfe_min ?? "—"} to ${t.hfe_max ?? "—"}.`);
   }
 
   /** Runs the tolerance analysis of the current design: the worst case at
@@ -79,8 +194,13 @@ export const withToleranceView = (Base) => class extends Base {
     if (!api || typeof api.Tolerance !== "function" || !this._design) return fail("The engine is not ready yet.");
     let t;
     const started = performance.now();
+    const design = this._exportDesign();
+    const designText = JSON.stringify(design);
+    this._tolStale.hidden = true;
+    this._tolOut.classList.remove("stale");
+    this._tolHistBox.classList.remove("stale");
     try {
-      t = new api.Tolerance(JSON.stringify(this._exportDesign()), Number(this._tolTrials.value), this._tolSeed.value);
+      t = new api.Tolerance(designText, Number(this._tolTrials.value), this._tolSeed.value);
     } catch (err) {
       const e = asFieldError(err);
       return fail(e.message);
@@ -88,6 +208,7 @@ export const withToleranceView = (Base) => class extends Base {
     this._tolRun = t;
     const timing = { setup: performance.now() - started, trials: 0, summary: 0, chunks: 0 };
     const report = t.report();
+    this._tolOut.append(this._runHeading(design, report));
     this._renderWorst(report);
     const n = Number(this._tolTrials.value) | 0;
     let next = 0;
@@ -121,7 +242,10 @@ export const withToleranceView = (Base) => class extends Base {
         const summary = t.summary();
         timing.summary = performance.now() - s0;
         this._renderMonteCarlo(summary);
-        this.toleranceResult = { report, summary, ms: performance.now() - started, timing, cancelled };
+        const title = typeof design.title === "string" && design.title.trim() ? design.title : "Untitled stage";
+        this.toleranceResult = { report, summary, ms: performance.now() - started, timing, cancelled, designText, title, stale: false };
+        // An edit made while the trials ran.
+        this._onDesignChanged(this._exportDesign());
         const note = cancelled ? ` Cancelled after ${summary.completed} of ${n} trials.` : "";
         if (cancelled) {
           this._tolOut.prepend(h("p", { class: "tol-cancelled", role: "status" }, `Cancelled after ${summary.completed} of ${n} trials: the figures below are for those.`));
