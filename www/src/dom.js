@@ -42,3 +42,29 @@ export function sym(main, sub) {
 export function symNodes([main, sub]) {
   return sub ? [main, h("sub", null, sub)] : [main];
 }
+
+/** Sets an element's text only when it differs, and by changing its one
+ * text node's data where it has one: the browser then lays the text out
+ * again without rebuilding the element's style and layout tree (a
+ * textContent assignment makes a new text node, which costs both). */
+export function setText(el, text) {
+  const only = el.firstChild;
+  if (only && only === el.lastChild && only.nodeType === 3) {
+    if (only.data !== text) only.data = text;
+  } else if (el.textContent !== text) {
+    el.textContent = text;
+  }
+}
+
+/** Makes `parent`'s children equal to `nodes` (freshly built, detached),
+ * keeping every existing child that is already equal to its new one, so
+ * that a table redrawn after an edit restyles only the rows that changed. */
+export function syncChildren(parent, nodes) {
+  let i = 0;
+  for (; i < nodes.length; i++) {
+    const old = parent.children[i];
+    if (!old) parent.append(nodes[i]);
+    else if (!old.isEqualNode(nodes[i])) old.replaceWith(nodes[i]);
+  }
+  while (parent.children.length > nodes.length) parent.lastElementChild.remove();
+}

@@ -179,8 +179,21 @@ export const withPlots = (Base) => class extends Base {
         size = { w: Math.round(p.canvas.clientWidth * ratio), h: Math.round(p.canvas.clientHeight * ratio), ratio };
       }
       const sized = { pixel_size: new Float64Array([size.w, size.h]), pixel_ratio: size.ratio };
+      // Drawn on a canvas outside the document, then copied: a canvas in
+      // the page resolves each label's font against the page's styles,
+      // which after an edit first restyles and lays out the element (about
+      // 5 ms of a 9 ms edit); a detached one has no styles to bring up to
+      // date.
+      if (!p.work) p.work = document.createElement("canvas");
       try {
-        fn(p.canvas, Object.assign({}, spec || Object.assign({ empty_text: empty, theme: specs.theme.theme }, emptySpec), sized));
+        fn(p.work, Object.assign({}, spec || Object.assign({ empty_text: empty, theme: specs.theme.theme }, emptySpec), sized));
+        if (p.canvas.width !== p.work.width) p.canvas.width = p.work.width;
+        if (p.canvas.height !== p.work.height) p.canvas.height = p.work.height;
+        const ctx = p.canvas.getContext("2d");
+        ctx.globalCompositeOperation = "copy";
+        ctx.drawImage(p.work, 0, 0);
+        ctx.globalCompositeOperation = "source-over";
+        p.canvas.removeAttribute("data-error");
       } catch (err) {
         p.canvas.setAttribute("data-error", asFieldError(err).message);
       }

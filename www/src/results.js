@@ -4,7 +4,7 @@
  * deferral to local practice, and the summary announced after each
  * recompute. Methods of the element. */
 
-import { h, sym, symNodes } from "./dom.js";
+import { h, setText, sym, symNodes, syncChildren } from "./dom.js";
 
 /** Units and names of the checks that mirror requirements. */
 const CHECK_INFO = {
@@ -185,15 +185,15 @@ export const withResults = (Base) => class extends Base {
       const outs = this._out[group];
       for (const [key, , unit] of rows) {
         const v = values ? values[key] : undefined;
-        outs[key].textContent = custom ? custom(key, v, unit) : v === undefined ? "—" : fmt(v, unit);
+        setText(outs[key], custom ? custom(key, v, unit) : v === undefined ? "—" : fmt(v, unit));
       }
     };
 
     const op = report.operating_point || {};
     fill("operating_point", OP_ROWS, op);
     const region = typeof op.region === "string" ? op.region : "";
-    this._out.region.textContent = region || "—";
-    this._out.region.setAttribute("data-region", region);
+    setText(this._out.region, region || "—");
+    if (this._out.region.getAttribute("data-region") !== region) this._out.region.setAttribute("data-region", region);
 
     fill("small_signal", SMALL_ROWS, report.small_signal || {});
 
@@ -219,7 +219,7 @@ export const withResults = (Base) => class extends Base {
       if (typeof c.id === "string" && c.id.startsWith("resistor_power.")) limits[c.id.slice(15)] = c.limit;
     }
     const tbody = this._out.resistors;
-    tbody.textContent = "";
+    const resistorRows = [];
     const resistors = diss.resistors && typeof diss.resistors === "object" ? diss.resistors : {};
     for (const [name, watts] of Object.entries(resistors)) {
       const share = limits[name] > 0 && typeof watts === "number" ? watts / limits[name] : null;
@@ -227,12 +227,13 @@ export const withResults = (Base) => class extends Base {
         h("th", { scope: "row" }, name),
         h("td", null, fmt(watts, "W")),
         h("td", null, share === null ? "—" : pct(share)));
-      tbody.append(tr);
+      resistorRows.push(tr);
     }
+    syncChildren(tbody, resistorRows);
 
     // Ratings and requirement checks.
     const cbody = this._out.checks;
-    cbody.textContent = "";
+    const checkRows = [];
     let passed = 0;
     for (const c of checks) {
       const id = String(c.id || "check");
@@ -241,27 +242,29 @@ export const withResults = (Base) => class extends Base {
         [id.replace(/_/g, " "), typeof c.unit === "string" ? c.unit : "", ""];
       const [name, unit, rel] = info;
       if (c.pass) passed++;
-      cbody.append(h("tr", { class: c.pass ? "pass" : "fail" },
+      checkRows.push(h("tr", { class: c.pass ? "pass" : "fail" },
         h("td", null, h("span", { class: "verdict" }, c.pass ? "✓ met" : "✗ not met")),
         h("th", { scope: "row" }, name, rel ? h("span", { class: "rel" }, " " + rel) : null),
         h("td", null, cornerValue(report, id) || fmt(c.value, unit)),
         h("td", null, fmt(c.limit, unit)),
         h("td", { class: "msg" }, typeof c.message === "string" ? c.message : "")));
     }
-    this._out.checksSummary.textContent = checks.length
+    syncChildren(cbody, checkRows);
+    setText(this._out.checksSummary, checks.length
       ? `${passed} of ${checks.length} checks met: ratings first, then the design's requirements.`
-      : "No checks.";
+      : "No checks.");
     this._out.checksCard.classList.toggle("has-fail", passed < checks.length);
 
     // Cautions, prominently, with the deferral to local practice.
     const cautions = Array.isArray(report.cautions) ? report.cautions : [];
     const ul = this._cautions.querySelector("ul");
-    ul.textContent = "";
+    const items = [];
     // The deferral to local codes and licensed practice, once under the
     // list; marked when a caution is about harm (the engine's `safety`).
     for (const c of cautions) {
-      ul.append(h("li", { "data-id": String(c.id || "") }, typeof c.message === "string" ? c.message : String(c.id)));
+      items.push(h("li", { "data-id": String(c.id || "") }, typeof c.message === "string" ? c.message : String(c.id)));
     }
+    syncChildren(ul, items);
     const deferral = this._cautions.querySelector(".deferral");
     deferral.classList.toggle("safety", cautions.some((c) => c.safety === true));
     this._cautions.hidden = cautions.length === 0;
