@@ -229,6 +229,14 @@ pub const DISS_TRANSISTOR: Figure = f(
     NONE,
     "W",
 );
+/// `dissipation.ptot_available`.
+pub const DISS_PTOT_AVAILABLE: Figure = f(
+    "dissipation.ptot_available",
+    "dissipation rating at this ambient",
+    "",
+    ("P", "tot"),
+    "W",
+);
 /// `dissipation.junction_temperature`.
 pub const DISS_JUNCTION_TEMPERATURE: Figure = f(
     "dissipation.junction_temperature",
@@ -277,6 +285,7 @@ pub const FIGURES: &[Figure] = &[
     SWING_SYMMETRIC,
     SWING_CENTRED_SWING,
     DISS_TRANSISTOR,
+    DISS_PTOT_AVAILABLE,
     DISS_JUNCTION_TEMPERATURE,
     DISS_SUPPLY_CURRENT,
 ];

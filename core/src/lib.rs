@@ -135,8 +135,8 @@ pub use nodal::{AcNetwork, Band, FrequencyPoint};
 pub use operating_point::{OperatingPoint, Region};
 pub use presets::{preset, Preset, PRESETS};
 pub use ratings::{
-    BiasStability, Caution, Check, Dissipation, BIAS_STABILITY_LIMIT, DEFERRAL, ES1_DC_LIMIT,
-    HOT_SURFACE_CELSIUS, RATING_MARGIN, RESISTOR_DERATING,
+    BiasStability, Caution, Check, Dissipation, Rating, BIAS_STABILITY_LIMIT, DEFERRAL,
+    ES1_DC_LIMIT, HOT_SURFACE_CELSIUS, RATINGS, RATING_MARGIN, RESISTOR_DERATING,
 };
 #[cfg(feature = "serde")]
 pub use report::{

@@ -198,38 +198,63 @@ impl Dissipation {
     }
 }
 
+/// One rating of the transistor that every analysis checks: the check's
+/// id, the rating's name, what is held against it, and the unit.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub struct Rating {
+    /// The check's id in the report: `vceo`.
+    pub id: &'static str,
+    /// The rating's name: "VCEO rating".
+    pub label: &'static str,
+    /// What is held against it: "supply across the transistor at cutoff".
+    pub what: &'static str,
+    /// The unit of value and limit.
+    pub unit: &'static str,
+}
+
+/// The transistor's ratings, in the order of the checks. Each resistor's
+/// power is checked too, as `resistor_power.NAME` against half its
+/// rating ([`RESISTOR_DERATING`]).
+pub const RATINGS: &[Rating] = &[
+    Rating {
+        id: "vceo",
+        label: "VCEO rating",
+        what: "supply across the transistor at cutoff",
+        unit: "V",
+    },
+    Rating {
+        id: "ic_max",
+        label: "collector current rating",
+        what: "peak collector current at full swing",
+        unit: "A",
+    },
+    Rating {
+        id: "ptot",
+        label: "dissipation rating",
+        what: "transistor dissipation",
+        unit: "W",
+    },
+    Rating {
+        id: "tj_max",
+        label: "junction temperature rating",
+        what: "junction temperature",
+        unit: "°C",
+    },
+];
+
 /// The ratings checks: VCEO, IC max, Ptot (derated), Tj max and each resistor's power.
 pub fn rating_checks(stage: &Stage, swing: &Swing, d: &Dissipation) -> Vec<Check> {
     let t = &stage.transistor;
-    let mut out = Vec::with_capacity(4 + d.resistors.len());
-    out.push(Check::at_most(
-        "vceo",
-        "supply across the transistor at cutoff",
-        stage.supply,
-        t.vceo_max,
-        "V",
-    ));
-    out.push(Check::at_most(
-        "ic_max",
-        "peak collector current at full swing",
-        swing.ic_peak.max(0.0),
-        t.ic_max,
-        "A",
-    ));
-    out.push(Check::at_most(
-        "ptot",
-        "transistor dissipation",
-        d.transistor,
-        d.ptot_available,
-        "W",
-    ));
-    out.push(Check::at_most(
-        "tj_max",
-        "junction temperature",
-        d.junction_temperature.celsius(),
-        t.tj_max.celsius(),
-        "°C",
-    ));
+    let mut out = Vec::with_capacity(RATINGS.len() + d.resistors.len());
+    let values = [
+        (stage.supply, t.vceo_max),
+        (swing.ic_peak.max(0.0), t.ic_max),
+        (d.transistor, d.ptot_available),
+        (d.junction_temperature.celsius(), t.tj_max.celsius()),
+    ];
+    for (r, (value, limit)) in RATINGS.iter().zip(values) {
+        out.push(Check::at_most(r.id, r.what, value, limit, r.unit));
+    }
     for &(name, w) in &d.resistors {
         let what = format!("{name} dissipation");
         out.push(Check::at_most(

@@ -33,7 +33,7 @@ use stagewright::{
     DEFAULT_TRIALS, MAX_DEPTH, MAX_ECHO, MAX_NOTES, MAX_SUPPLY, MAX_TITLE, MAX_TRIALS,
     MIN_RESISTANCE, OPEN_RESISTANCE, PRESETS, SEARCH_FROM, SEARCH_TO,
 };
-use stagewright::{utf8_text, Bound, Report, RequirementsDocument, FIGURES, REQUIREMENTS};
+use stagewright::{utf8_text, Bound, Report, RequirementsDocument, FIGURES, RATINGS, REQUIREMENTS};
 
 /// |a − b| / max(|a|, |b|), 0 when both are 0.
 fn rel(a: f64, b: f64) -> f64 {
@@ -673,6 +673,33 @@ fn names_every_figure_is_a_number_of_the_report() {
         assert!(!f.label.is_empty() && !f.row_label().is_empty());
     }
     assert!(FIGURES.len() >= 30);
+}
+
+#[test]
+fn ratings_table_names_every_rating_check() {
+    // The one table of ratings names the report's rating checks: the same
+    // ids in the same order, each check in the table's unit, the resistor
+    // checks after them.
+    let d = Design {
+        title: String::new(),
+        notes: String::new(),
+        preset: Some("general-purpose-npn".into()),
+        stage: example(),
+        requirements: Requirements::default(),
+        tolerances: None,
+    };
+    let a = d.analyze().expect("analyses");
+    let ids: Vec<&str> = a.ratings.iter().map(|c| c.id.as_str()).collect();
+    let table: Vec<&str> = RATINGS.iter().map(|r| r.id).collect();
+    assert_eq!(&ids[..RATINGS.len()], &table[..]);
+    for (c, r) in a.ratings.iter().zip(RATINGS) {
+        assert_eq!(c.unit, r.unit, "{}", r.id);
+        assert!(c.message.starts_with(r.what), "{}: {}", r.id, c.message);
+        assert!(r.label.ends_with("rating"), "{}", r.label);
+    }
+    assert!(ids[RATINGS.len()..]
+        .iter()
+        .all(|id| id.starts_with("resistor_power.")));
 }
 
 #[test]

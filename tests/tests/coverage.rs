@@ -456,6 +456,8 @@ const COVERAGE: &[(&str, Covered)] = &[
         "FIGURES",
         Api("names_every_figure_is_a_number_of_the_report"),
     ),
+    ("Rating", Api("ratings_table_names_every_rating_check")),
+    ("RATINGS", Api("ratings_table_names_every_rating_check")),
     ("Bound", Api("requirements_table_is_the_file_format")),
     ("Requirement", Api("requirements_table_is_the_file_format")),
     ("REQUIREMENTS", Api("requirements_table_is_the_file_format")),

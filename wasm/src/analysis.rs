@@ -260,3 +260,70 @@ pub fn preset_data(name: JsValue) -> Result<JsValue, JsValue> {
     }
     Ok(o.into())
 }
+
+/// The core's tables that the page lays its results out from, so that it
+/// keeps no copy of a label, a symbol or a unit:
+///
+/// * `figures`: every figure of the report (`stagewright::FIGURES`), as
+///   `{key, label, symbol: [letter, subscript], unit}`, `key` the dotted
+///   path in the report (`operating_point.ic`);
+/// * `requirements`: `{key, label, unit, bound}` (`"at least"` or
+///   `"at most"`), in the order of the file's block;
+/// * `ratings`: `{id, label, what, unit}`, the transistor's rating checks.
+///
+/// JS: `tables() -> {figures, requirements, ratings}`.
+#[wasm_bindgen]
+pub fn tables() -> JsValue {
+    let figures = js_sys::Array::new();
+    for f in stagewright::FIGURES {
+        let o = Builder::new();
+        o.set("key", f.key);
+        o.set("label", f.label);
+        let symbol = js_sys::Array::new();
+        symbol.push(&JsValue::from_str(f.symbol.0));
+        symbol.push(&JsValue::from_str(f.symbol.1));
+        o.set("symbol", symbol);
+        o.set("unit", f.unit);
+        figures.push(&o.into());
+    }
+    let requirements = js_sys::Array::new();
+    for r in stagewright::REQUIREMENTS {
+        let o = Builder::new();
+        o.set("key", r.key);
+        o.set("label", r.label());
+        o.set("unit", r.unit);
+        o.set(
+            "bound",
+            match r.bound {
+                stagewright::Bound::AtLeast => "at least",
+                stagewright::Bound::AtMost => "at most",
+            },
+        );
+        requirements.push(&o.into());
+    }
+    let ratings = js_sys::Array::new();
+    for r in stagewright::RATINGS {
+        let o = Builder::new();
+        o.set("id", r.id);
+        o.set("label", r.label);
+        o.set("what", r.what);
+        o.set("unit", r.unit);
+        ratings.push(&o.into());
+    }
+    let o = Builder::new();
+    o.set("figures", figures);
+    o.set("requirements", requirements);
+    o.set("ratings", ratings);
+    o.into()
+}
+
+/// A warning when `value` (SI units) lies far outside the usual range of
+/// the part or condition `key` (`rc`, `c_in`, `supply`), else null:
+/// "1 mΩ is unusual for a collector resistor (usually 1 Ω to 10 MΩ)"
+/// (`stagewright::unusual`).
+///
+/// JS: `unusual(key: string, value: number) -> string | null`.
+#[wasm_bindgen]
+pub fn unusual(key: JsValue, value: f64) -> Option<String> {
+    stagewright::unusual(&key.as_string()?, value)
+}

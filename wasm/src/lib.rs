@@ -28,7 +28,9 @@ mod spec;
 mod tolerance;
 mod values;
 
-pub use analysis::{analyze, compute, preset_data, presets, read_design_text, utf8_text};
+pub use analysis::{
+    analyze, compute, preset_data, presets, read_design_text, tables, unusual, utf8_text,
+};
 pub use plot::{plot_frequency, plot_xy};
 pub use spec::design_from_spec;
 pub use tolerance::Tolerance;

@@ -688,6 +688,8 @@ export class StagewrightCalc extends withShare(withPlots(withResults(withDiagram
   _engineReady(api) {
     if (this._api === api) return;
     this._api = api;
+    // The result cards' rows and the checks' names: the core's tables.
+    this._buildResultCards(typeof api.tables === "function" ? api.tables() : null);
     const presetField = this._fields.get("preset");
     if (presetField) {
       const sel = presetField.input;

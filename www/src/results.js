@@ -6,70 +6,26 @@
 
 import { h, setText, sym, symNodes, syncChildren } from "./dom.js";
 
-/** Units and names of the checks that mirror requirements. */
-const CHECK_INFO = {
-  min_voltage_gain_db: ["voltage gain", "dB", "≥"],
-  max_voltage_gain_db: ["voltage gain", "dB", "≤"],
-  min_input_impedance: ["input impedance", "Ω", "≥"],
-  max_output_impedance: ["output impedance", "Ω", "≤"],
-  min_swing: ["output swing (peak)", "V", "≥"],
-  max_f_low: ["lower corner", "Hz", "≤"],
-  min_f_high: ["upper corner", "Hz", "≥"],
-  max_supply_current: ["supply current", "A", "≤"],
-  max_junction_temperature: ["junction temperature", "°C", "≤"],
-  vceo: ["VCEO rating", "V", ""],
-  ic_max: ["collector current rating", "A", ""],
-  ptot: ["dissipation rating", "W", ""],
-  tj_max: ["junction temperature rating", "°C", ""],
-};
-
 export const DEFERRAL =
   "These figures come from simplified device models. Confirm them by measurement, " +
   "check them against the data of the parts actually used, and follow the codes, " +
   "standards and licensed practice that apply where the design will be built.";
 
-const OP_ROWS = [
-  ["ic", sym("I", "C"), "A", "collector current"],
-  ["ib", sym("I", "B"), "A", "base current"],
-  ["ie", sym("I", "E"), "A", "emitter current"],
-  ["vce", sym("V", "CE"), "V", "collector-emitter voltage"],
-  ["vbe", sym("V", "BE"), "V", "base-emitter voltage"],
-  ["vb", sym("V", "B"), "V", "base voltage"],
-  ["ve", sym("V", "E"), "V", "emitter voltage"],
-  ["vc", sym("V", "C"), "V", "collector voltage"],
+/** The result cards, in the order they are laid out (the checks card
+ * comes first): the report section each one shows and its title. Their
+ * rows are the core's figures of that section (the engine's tables()),
+ * so the page keeps no copy of a label, a symbol or a unit. */
+const SECTIONS = [
+  ["operating_point", "Operating point"],
+  ["midband", "Midband"],
+  ["bandwidth", "Bandwidth"],
+  ["swing", "Output swing"],
+  ["dissipation", "Dissipation and temperature"],
+  ["small_signal", "Small-signal model"],
 ];
-const SMALL_ROWS = [
-  ["gm", sym("g", "m"), "S", "transconductance"],
-  ["r_pi", sym("r", "π"), "Ω", "base input resistance"],
-  ["r_o", sym("r", "o"), "Ω", "output resistance"],
-  ["c_pi", sym("C", "π"), "F", "base-emitter capacitance"],
-  ["c_mu", sym("C", "μ"), "F", "base-collector capacitance"],
-];
-const MID_ROWS = [
-  ["voltage_gain", sym("A", "v"), "gain", "voltage gain"],
-  ["voltage_gain_from_source", sym("A", "vs"), "gain", "voltage gain from the source"],
-  ["current_gain", sym("A", "i"), "gain", "current gain"],
-  ["power_gain_db", sym("G", "p"), "dB", "power gain"],
-  ["input_impedance", sym("Z", "in"), "Ω", "input impedance"],
-  ["output_impedance", sym("Z", "out"), "Ω", "output impedance"],
-];
-const BW_ROWS = [
-  ["f_low", sym("f", "L"), "Hz", "lower corner (−3 dB)"],
-  ["f_high", sym("f", "H"), "Hz", "upper corner (−3 dB)"],
-  ["f_unity_current_gain", sym("f", "T"), "Hz", "unity current gain"],
-  ["f_unity_power_gain", sym("f", "max"), "Hz", "unity power gain"],
-];
-const SWING_ROWS = [
-  ["positive", sym("+"), "V", "positive peak at the load"],
-  ["negative", sym("−"), "V", "negative peak at the load"],
-  ["symmetric", sym("±"), "V", "peak of the largest undistorted sine"],
-];
-const DISS_ROWS = [
-  ["transistor", sym("P", "D"), "W", "transistor dissipation"],
-  ["ptot_available", sym("P", "tot"), "W", "dissipation rating at this ambient"],
-  ["junction_temperature", sym("T", "J"), "°C", "junction temperature"],
-  ["supply_current", sym("I", "S"), "A", "supply current"],
-];
+
+/** A ratio the page shows with its decibels beside it. */
+const isGain = (key, unit) => unit === "" && /(^|_)gain(_from_source)?$/.test(key);
 
 /** A card of labelled <output>s; returns {card, outputs: key -> output}. */
 function quantityCard(id, title, rows, extra) {
@@ -114,18 +70,12 @@ export const withResults = (Base) => class extends Base {
       h("p", { class: "deferral" }, DEFERRAL));
 
     const region = h("span", { class: "region", "data-region": "" }, "—");
-    const op = quantityCard("operating_point", "Operating point", OP_ROWS, h("p", { class: "region-line" }, "Region: ", region));
-    const small = quantityCard("small_signal", "Small-signal model", SMALL_ROWS);
-    const mid = quantityCard("midband", "Midband", MID_ROWS);
-    const bw = quantityCard("bandwidth", "Bandwidth", BW_ROWS);
-    const swing = quantityCard("swing", "Output swing", SWING_ROWS);
-    const resistorTable = h("table", { class: "numbers resistors" },
+    this._resistorTable = h("table", { class: "numbers resistors" },
       h("caption", null, "Resistors"),
       h("thead", null, h("tr", null, h("th", { scope: "col" }, "part"), h("th", { scope: "col" }, "dissipation"),
         h("th", { scope: "col" }, "of limit"))),
       h("tbody", null));
-    const diss = quantityCard("dissipation", "Dissipation and temperature", DISS_ROWS);
-    diss.card.append(resistorTable);
+    this._regionLine = h("p", { class: "region-line" }, "Region: ", region);
 
     const checksBody = h("tbody", null);
     const checks = h("section", { class: "card card-checks", "aria-labelledby": id("h-checks") },
@@ -140,22 +90,37 @@ export const withResults = (Base) => class extends Base {
 
     this._out = {
       region,
-      operating_point: op.outputs,
-      small_signal: small.outputs,
-      midband: mid.outputs,
-      bandwidth: bw.outputs,
-      swing: swing.outputs,
-      dissipation: diss.outputs,
-      resistors: resistorTable.tBodies[0],
+      resistors: this._resistorTable.tBodies[0],
       checks: checksBody,
       checksSummary: checks.querySelector(".checks-summary"),
       checksCard: checks,
     };
-    this._resultsBody = h("div", { class: "result-grid" },
-      checks, op.card, mid.card, bw.card, swing.card, diss.card, small.card);
+    for (const [section] of SECTIONS) this._out[section] = {};
+    this._resultsBody = h("div", { class: "result-grid" }, checks);
     return h("section", { class: "results", "aria-labelledby": id("h-results") },
       h("h3", { id: id("h-results"), class: "visually-hidden" }, "Results"),
       this._resultNotice, this._cautions, this._resultsBody);
+  }
+
+  /** The result cards, once the engine has given its tables: a row per
+   * figure of each section, and the names of the checks. */
+  _buildResultCards(tables) {
+    if (this._cardsBuilt || !tables) return;
+    this._cardsBuilt = true;
+    const names = {};
+    for (const r of tables.requirements) names[r.key] = [r.label, r.unit, r.bound === "at least" ? "≥" : "≤"];
+    for (const r of tables.ratings) names[r.id] = [r.label, r.unit, ""];
+    this._checkNames = names;
+    for (const [section, title] of SECTIONS) {
+      const rows = tables.figures.filter((f) => f.key.startsWith(section + "."))
+        .map((f) => [f.key.slice(section.length + 1), f.symbol, isGain(f.key.slice(section.length + 1), f.unit) ? "gain" : f.unit, f.label]);
+      this._rows = this._rows || {};
+      this._rows[section] = rows;
+      const card = quantityCard(section, title, rows, section === "operating_point" ? this._regionLine : null);
+      if (section === "dissipation") card.card.append(this._resistorTable);
+      this._out[section] = card.outputs;
+      this._resultsBody.append(card.card);
+    }
   }
 
   _clearResults() {
@@ -181,23 +146,24 @@ export const withResults = (Base) => class extends Base {
       if (typeof v !== "number" || !Number.isFinite(v)) return "—";
       return api ? api.format_si(v, unit) : String(v);
     };
-    const fill = (group, rows, values, custom) => {
+    if (!this._rows) return;
+    const fill = (group, values, custom) => {
       const outs = this._out[group];
-      for (const [key, , unit] of rows) {
+      for (const [key, , unit] of this._rows[group]) {
         const v = values ? values[key] : undefined;
         setText(outs[key], custom ? custom(key, v, unit) : v === undefined ? "—" : fmt(v, unit));
       }
     };
 
     const op = report.operating_point || {};
-    fill("operating_point", OP_ROWS, op);
+    fill("operating_point", op);
     const region = typeof op.region === "string" ? op.region : "";
     setText(this._out.region, region || "—");
     if (this._out.region.getAttribute("data-region") !== region) this._out.region.setAttribute("data-region", region);
 
-    fill("small_signal", SMALL_ROWS, report.small_signal || {});
+    fill("small_signal", report.small_signal || {});
 
-    fill("midband", MID_ROWS, report.midband || {}, (key, v, unit) => {
+    fill("midband", report.midband || {}, (key, v, unit) => {
       if (v === undefined) return "—";
       if (unit !== "gain") return fmt(v, unit);
       if (typeof v !== "number" || !Number.isFinite(v)) return fmt(v, "");
@@ -205,13 +171,13 @@ export const withResults = (Base) => class extends Base {
       return `${fmt(v, "")} (${db})`;
     });
 
-    fill("bandwidth", BW_ROWS, report.bandwidth || {});
+    fill("bandwidth", report.bandwidth || {});
 
     const swing = report.swing || {};
-    fill("swing", SWING_ROWS, swing);
+    fill("swing", swing);
 
     const diss = report.dissipation || {};
-    fill("dissipation", DISS_ROWS, diss);
+    fill("dissipation", diss);
     // Each resistor against the limit of its rating check.
     const checks = Array.isArray(report.checks) ? report.checks : [];
     const limits = {};
@@ -237,7 +203,7 @@ export const withResults = (Base) => class extends Base {
     let passed = 0;
     for (const c of checks) {
       const id = String(c.id || "check");
-      const info = CHECK_INFO[id] ||
+      const info = this._checkNames[id] ||
         (id.startsWith("resistor_power.") ? [`${id.slice(15)} power rating`, "W", ""] : null) ||
         [id.replace(/_/g, " "), typeof c.unit === "string" ? c.unit : "", ""];
       const [name, unit, rel] = info;
