@@ -305,7 +305,7 @@ export const withToleranceView = (Base) => class extends Base {
       })));
     this._tolOut.append(
       h("p", { class: "tol-yield" }, h("strong", null, `Yield ${yieldText(s.yield)}`), ` of ${s.completed} trials, seed ${s.seed}${extra}.`, each ? ` Each requirement: ${each}.` : ""),
-      dist);
+      h("div", { class: "tol-tables" }, dist));
     this._tolSummary = s;
     const pick = this._tolHistPick;
     const prior = pick.value;
