@@ -9,7 +9,7 @@ import { readFileSync } from "node:fs";
 import path from "node:path";
 import { after, before, describe, test } from "node:test";
 
-import { dist, htmlUrl, launch, screenshot, scriptPath, waitReady, waitReport } from "./helpers.mjs";
+import { artifacts, dist, htmlUrl, launch, screenshot, scriptPath, waitReady, waitReport } from "./helpers.mjs";
 
 const ORIGIN = "https://wiki.example";
 const script = readFileSync(scriptPath);
@@ -277,6 +277,11 @@ describe("layout", () => {
       assert.ok(Math.abs(narrow.frame - narrow.body) <= 3, `at 736 px the frame is ${narrow.frame} px high for a page of ${narrow.body} px`);
       assert.ok(narrow.scroll <= narrow.frame + 3, `at 736 px the framed page (${narrow.scroll} px) fits the frame`);
       await screenshot(page, "layout-frame-736.png");
+      // The frame's end, as a reader scrolls to it: the framed page's
+      // footer, then the host page's next paragraph (a full-page capture
+      // of a page with a tall frame may cut the frame's content short).
+      await page.evaluate(() => window.scrollTo(0, document.documentElement.scrollHeight));
+      await page.screenshot({ path: path.join(artifacts, "layout-frame-736-end.png") });
       assert.deepEqual(b.errors, [], "no script error in the page or the frame");
     } finally {
       await b.close();
