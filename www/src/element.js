@@ -488,8 +488,9 @@ export class StagewrightCalc extends withShare(withPlots(withResults(withDiagram
         for (const e of entries) this._onWidth(e.contentRect.width);
       })
       : null;
+    // The observer's first call comes after the first layout and before
+    // the first paint: no layout is forced here, while the engine compiles.
     if (this._widthObserver) this._widthObserver.observe(this);
-    this._onWidth(this.getBoundingClientRect().width);
   }
 
   _mark() {
@@ -750,10 +751,9 @@ export class StagewrightCalc extends withShare(withPlots(withResults(withDiagram
     this.renderReport(out.report);
     this._annotateDiagram(out.report);
     // An edit redraws at once (the timing script measures edit → redraw);
-    // the first results show before the first plots, drawn in the next
-    // frame (the canvas's first text costs tens of ms of font set-up).
+    // the first results are painted before the first plots are drawn.
     if (this._reported) this._drawPlots();
-    else this._schedulePlots();
+    else this._schedulePlots(true);
     this._announce(this._summary(out.report));
     if (!this._reported) {
       this._reported = true;

@@ -4,7 +4,7 @@
  * and the numbers behind each plot as a table. Methods of the element. */
 
 import { h } from "./dom.js";
-import { asFieldError } from "./engine.js";
+import { asFieldError, mark } from "./engine.js";
 
 let colorProbe = null;
 
@@ -68,11 +68,17 @@ export const withPlots = (Base) => class extends Base {
     return this._plotParts ? Object.values(this._plotParts).map((p) => p.canvas) : [];
   }
 
-  _schedulePlots() {
+  /** Draws the plots in the next frame; with `afterPaint`, once that
+   * frame has been painted (the first results show before the plots). */
+  _schedulePlots(afterPaint) {
     if (this._plotFrame) return;
     this._plotFrame = requestAnimationFrame(() => {
-      this._plotFrame = 0;
-      this._drawPlots();
+      const draw = () => {
+        this._plotFrame = 0;
+        this._drawPlots();
+      };
+      if (afterPaint) setTimeout(draw, 0);
+      else draw();
     });
   }
 
@@ -206,6 +212,10 @@ export const withPlots = (Base) => class extends Base {
     draw("gain", api.plot_frequency, specs.gain, { series: [] });
     draw("impedance", api.plot_frequency, specs.impedance, { series: [] });
     draw("loadlines", api.plot_xy, specs.loadlines, { curves: [] });
+    if (a && !this._plotted) {
+      this._plotted = true;
+      mark("stagewright:first-plots");
+    }
   }
 
   /** The numbers behind a plot, as a table (built only when shown). */
