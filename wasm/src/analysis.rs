@@ -269,9 +269,11 @@ pub fn preset_data(name: JsValue) -> Result<JsValue, JsValue> {
 ///   path in the report (`operating_point.ic`);
 /// * `requirements`: `{key, label, unit, bound}` (`"at least"` or
 ///   `"at most"`), in the order of the file's block;
-/// * `ratings`: `{id, label, what, unit}`, the transistor's rating checks.
+/// * `ratings`: `{id, label, what, unit}`, the transistor's rating checks;
+/// * `open_resistance`: the resistance that stands for an open circuit
+///   (`stagewright::OPEN_RESISTANCE`: ro with no Early effect).
 ///
-/// JS: `tables() -> {figures, requirements, ratings}`.
+/// JS: `tables() -> {figures, requirements, ratings, open_resistance}`.
 #[wasm_bindgen]
 pub fn tables() -> JsValue {
     let figures = js_sys::Array::new();
@@ -314,6 +316,7 @@ pub fn tables() -> JsValue {
     o.set("figures", figures);
     o.set("requirements", requirements);
     o.set("ratings", ratings);
+    o.set("open_resistance", stagewright::OPEN_RESISTANCE);
     o.into()
 }
 

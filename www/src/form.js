@@ -62,19 +62,22 @@ export const withForm = (Base) => class extends Base {
       }
       const understood = h("output", { id: id("u-" + spec.key), class: "understood", for: fid });
       const error = h("p", { id: id("e-" + spec.key), class: "error", hidden: true });
+      // A value the core reads but that lies far outside the part's usual
+      // range (1 mΩ typed for a resistor, 2.2 F for a capacitor).
+      const warn = h("p", { id: id("w-" + spec.key), class: "warn", hidden: true });
       const snap = h("button", { type: "button", class: "snap", hidden: true });
       const std = h("span", { class: "std", hidden: true });
       if (spec.kind === "value") {
-        input.setAttribute("aria-describedby", `${understood.id} ${error.id}`);
+        input.setAttribute("aria-describedby", `${understood.id} ${error.id} ${warn.id}`);
       }
       const unit = spec.kind === "value" ? h("span", { class: "unit", "aria-hidden": "true" }, spec.unit) : null;
       const row = h("div", { class: `field field-${spec.kind}`, "data-key": spec.key },
         label,
         h("div", { class: "entry" }, input, unit),
         spec.kind === "value" ? h("div", { class: "aside" }, understood, std, snap) : null,
-        error);
+        error, warn);
       fs.append(row);
-      const f = { spec, input, understood, error, snap, std, row };
+      const f = { spec, input, understood, error, warn, snap, std, row };
       this._fields.set(spec.key, f);
       const handler = () => this._onEdit(f);
       input.addEventListener(spec.kind === "select" ? "change" : "input", handler);
@@ -115,6 +118,7 @@ export const withForm = (Base) => class extends Base {
     const text = f.input.value.trim();
     f.snap.hidden = true;
     f.std.hidden = true;
+    if (f.warn) f.warn.hidden = true;
     const api = this._api;
     if (!text) {
       f.understood.textContent = this._placeholderText(spec);
@@ -139,6 +143,11 @@ export const withForm = (Base) => class extends Base {
     }
     this._setFieldError(f, "");
     f.understood.textContent = "= " + api.format_si(value, spec.unit);
+    const odd = typeof api.unusual === "function" ? api.unusual(spec.key, value) : null;
+    if (f.warn && odd) {
+      f.warn.textContent = `${odd}: check the entry.`;
+      f.warn.hidden = false;
+    }
     if (spec.series && value > 0 && !this.hasAttribute("readonly")) this._showSeries(f, value);
     return { ok: true, value };
   }

@@ -39,6 +39,9 @@ function unwrapDegrees(values) {
   return out;
 }
 
+/** The readout's text while the pointer is elsewhere. */
+const CURSOR_HINT = "Point at the plot to read its values.";
+
 /** The plots' methods, mixed into the element (element.js). */
 export const withPlots = (Base) => class extends Base {
   _buildPlots() {
@@ -50,10 +53,25 @@ export const withPlots = (Base) => class extends Base {
       numbers.addEventListener("toggle", () => {
         if (numbers.open) this._fillPlotTable(key);
       });
+      // The value under the pointer: a line over the canvas and a readout.
+      const line = h("div", { class: "cursor-line", hidden: true, "aria-hidden": "true" });
+      const readout = h("output", { class: "cursor-readout" }, CURSOR_HINT);
+      const stack = h("div", { class: "plot-stack" }, canvas, line, readout);
+      const png = h("button", { type: "button", class: "small", "data-action": "plot-png", title: `Save the plot as a PNG image` }, "PNG");
+      const csv = h("button", { type: "button", class: "small", "data-action": "plot-csv", title: `Save the plot's numbers as CSV` }, "CSV");
+      png.addEventListener("click", () => this.exportPlot(key, "png"));
+      csv.addEventListener("click", () => this.exportPlot(key, "csv"));
       const fig = h("figure", { class: "card plot-card", "data-plot": key },
-        h("figcaption", null, h("h3", { id: id("h-" + key) }, title), h("span", { class: "hint" }, desc)),
-        canvas, numbers);
-      return { fig, canvas, table, numbers };
+        h("figcaption", null, h("h3", { id: id("h-" + key) }, title), h("span", { class: "hint" }, desc),
+          h("span", { class: "plot-tools" }, png, csv)),
+        stack, numbers);
+      const part = { key, fig, canvas, table, numbers, line, readout };
+      canvas.addEventListener("pointermove", (e) => this._showCursor(part, e));
+      canvas.addEventListener("pointerleave", () => {
+        line.hidden = true;
+        readout.textContent = CURSOR_HINT;
+      });
+      return part;
     };
     this._plotParts = {
       gain: plot("gain", "Gain and phase", "voltage, current and power gain in dB, and phase, against frequency", true),
@@ -192,7 +210,8 @@ export const withPlots = (Base) => class extends Base {
       // date.
       if (!p.work) p.work = document.createElement("canvas");
       try {
-        fn(p.work, Object.assign({}, spec || Object.assign({ empty_text: empty, theme: specs.theme.theme }, emptySpec), sized));
+        const drawn = fn(p.work, Object.assign({}, spec || Object.assign({ empty_text: empty, theme: specs.theme.theme }, emptySpec), sized));
+        p.frame = drawn && spec ? drawn : null;
         if (p.canvas.width !== p.work.width) p.canvas.width = p.work.width;
         if (p.canvas.height !== p.work.height) p.canvas.height = p.work.height;
         const ctx = p.canvas.getContext("2d");
@@ -216,6 +235,116 @@ export const withPlots = (Base) => class extends Base {
       this._plotted = true;
       mark("stagewright:first-plots");
     }
+  }
+
+  /** The data value under a pointer event on a plot, or null: the panel
+   * it is over (index), and x and y in the axes' units. */
+  _plotValueAt(p, e) {
+    const f = p.frame;
+    if (!f || !p.canvas.clientWidth) return null;
+    const rect = p.canvas.getBoundingClientRect();
+    const sx = p.canvas.width / rect.width;
+    const sy = p.canvas.height / rect.height;
+    const px = (e.clientX - rect.left) * sx;
+    const py = (e.clientY - rect.top) * sy;
+    const at = (lo, hi, log, t) => (log ? Math.exp(Math.log(lo) + t * (Math.log(hi) - Math.log(lo))) : lo + t * (hi - lo));
+    for (let i = 0; i < f.panels.length; i++) {
+      const q = f.panels[i];
+      if (px < q.left || px > q.left + q.width || py < q.top || py > q.top + q.height) continue;
+      const tx = (px - q.left) / q.width;
+      const ty = 1 - (py - q.top) / q.height;
+      return { panel: i, x: at(q.x[0], q.x[1], q.x_log, tx), y: at(q.y[0], q.y[1], q.y_log, ty), cssX: px / sx };
+    }
+    return null;
+  }
+
+  /** The cursor readout: on a frequency plot, the frequency under the
+   * pointer and every trace's value at the nearest computed point; on
+   * the load lines, VCE and IC under the pointer. */
+  _showCursor(p, e) {
+    const api = this._api;
+    const spec = this._specs && this._specs[p.key];
+    const v = api && spec ? this._plotValueAt(p, e) : null;
+    if (!v) {
+      p.line.hidden = true;
+      p.readout.textContent = CURSOR_HINT;
+      return;
+    }
+    const f = (x, unit) => (typeof x === "number" && Number.isFinite(x) ? api.format_si(x, unit) : "—");
+    let text;
+    if (p.key === "loadlines") {
+      text = `VCE ${f(v.x, "V")} · IC ${f(v.y, "A")}`;
+    } else {
+      // The computed point nearest the pointer, on the log frequency axis.
+      let best = -1;
+      let dist = Infinity;
+      const lx = Math.log(v.x);
+      spec.freq.forEach((fr, i) => {
+        const d = Math.abs(Math.log(fr) - lx);
+        if (fr > 0 && d < dist) {
+          dist = d;
+          best = i;
+        }
+      });
+      if (best < 0) return;
+      const parts = [f(spec.freq[best], "Hz")];
+      for (const s of spec.series) parts.push(`${s.name} ${f(s.values[best], spec.y_unit)}`);
+      if (spec.phase) parts.push(`${spec.phase.name} ${f(spec.phase.values[best], "°")}`);
+      text = parts.join(" · ");
+    }
+    p.readout.textContent = text;
+    p.line.hidden = false;
+    // CSSOM positions (allowed under a strict style-src, unlike style="").
+    p.line.style.left = `${v.cssX}px`;
+    p.line.style.height = `${p.canvas.clientHeight}px`;
+  }
+
+  /** Saves a plot ("gain", "impedance", "loadlines") as a PNG image of
+   * its canvas or its numbers as CSV; returns the CSV text (or null). */
+  exportPlot(key, kind) {
+    const p = this._plotParts && this._plotParts[key];
+    if (!p) return null;
+    const name = `${this._slug()}-${key}`;
+    if (kind === "png") {
+      p.canvas.toBlob((blob) => {
+        if (blob) this._saveBlob(blob, `${name}.png`);
+      }, "image/png");
+      this._status.textContent = "Plot saved as PNG.";
+      return null;
+    }
+    const csv = this.plotCsv(key);
+    if (csv) {
+      this._saveBlob(new Blob([csv], { type: "text/csv" }), `${name}.csv`);
+      this._status.textContent = "Plot numbers saved as CSV.";
+    }
+    return csv;
+  }
+
+  /** A plot's numbers as CSV (RFC 4180: a header row, comma-separated,
+   * fields quoted where needed), SI units in the header, full precision. */
+  plotCsv(key) {
+    const spec = this._specs && this._specs[key];
+    if (!spec) return null;
+    const q = (s) => (/[",\n]/.test(s) ? `"${s.replace(/"/g, '""')}"` : s);
+    const n = (x) => (typeof x === "number" && Number.isFinite(x) ? String(x) : "");
+    const rows = [];
+    if (key === "gain" || key === "impedance") {
+      const cols = spec.series.map((c) => [`${c.name} (${spec.y_unit})`, c.values]);
+      if (spec.phase) cols.push([`${spec.phase.name} (°)`, spec.phase.values]);
+      rows.push(["frequency (Hz)", ...cols.map(([h]) => h)].map(q).join(","));
+      for (let i = 0; i < spec.freq.length; i++) rows.push([n(spec.freq[i]), ...cols.map(([, vs]) => n(vs[i]))].join(","));
+    } else {
+      rows.push(["curve or point", "VCE (V)", "IC (A)"].join(","));
+      for (const m of spec.markers) if (m.shape !== "none") rows.push([q(m.label || "point"), n(m.x), n(m.y)].join(","));
+      const chars = spec.markers.filter((m) => m.shape === "none");
+      let k = 0;
+      for (const c of spec.curves) {
+        const label = c.name || (chars[k] ? chars[k].label : `curve ${k + 1}`);
+        if (!c.name) k++;
+        for (let i = 0; i < c.x.length; i++) rows.push([q(label), n(c.x[i]), n(c.y[i])].join(","));
+      }
+    }
+    return rows.join("\r\n") + "\r\n";
   }
 
   /** The numbers behind a plot, as a table (built only when shown). */

@@ -107,6 +107,7 @@ export const withResults = (Base) => class extends Base {
   _buildResultCards(tables) {
     if (this._cardsBuilt || !tables) return;
     this._cardsBuilt = true;
+    this._tables = tables;
     const names = {};
     for (const r of tables.requirements) names[r.key] = [r.label, r.unit, r.bound === "at least" ? "≥" : "≤"];
     for (const r of tables.ratings) names[r.id] = [r.label, r.unit, ""];
@@ -161,7 +162,12 @@ export const withResults = (Base) => class extends Base {
     setText(this._out.region, region || "—");
     if (this._out.region.getAttribute("data-region") !== region) this._out.region.setAttribute("data-region", region);
 
-    fill("small_signal", report.small_signal || {});
+    // ro with no Early effect is the core's open circuit.
+    const open = this._tables ? this._tables.open_resistance : Infinity;
+    fill("small_signal", report.small_signal || {}, (key, v, unit) => {
+      if (key === "r_o" && typeof v === "number" && v >= open) return "∞ (no Early effect)";
+      return v === undefined ? "—" : fmt(v, unit);
+    });
 
     fill("midband", report.midband || {}, (key, v, unit) => {
       if (v === undefined) return "—";

@@ -134,16 +134,24 @@ export const withShare = (Base) => class extends Base {
   _download() {
     const design = this._exportDesign();
     const json = JSON.stringify(design, null, 2) + "\n";
-    const blob = new Blob([json], { type: "application/json" });
+    this._saveBlob(new Blob([json], { type: "application/json" }), `${this._slug()}.stagewright.json`);
+    this._status.textContent = "Design file saved.";
+  }
+
+  /** The design's title as a file-name stem ("sensor-buffer"). */
+  _slug() {
+    const title = this._design && typeof this._design.title === "string" ? this._design.title : "";
+    return title.toLowerCase().replace(/[^a-z0-9]+/g, "-").replace(/^-+|-+$/g, "").slice(0, 60) || "stage";
+  }
+
+  /** Offers `blob` for download as `name` (a blob: link, clicked). */
+  _saveBlob(blob, name) {
     const url = URL.createObjectURL(blob);
-    const slug = (typeof design.title === "string" ? design.title : "")
-      .toLowerCase().replace(/[^a-z0-9]+/g, "-").replace(/^-+|-+$/g, "").slice(0, 60) || "stage";
-    const a = h("a", { href: url, download: `${slug}.stagewright.json` });
+    const a = h("a", { href: url, download: name });
     this.shadowRoot.append(a);
     a.click();
     a.remove();
     setTimeout(() => URL.revokeObjectURL(url), 10000);
-    this._status.textContent = "Design file saved.";
   }
 
   _openFile(file) {

@@ -75,7 +75,12 @@ impl FrequencySpec {
     }
 }
 
-pub(super) fn draw_frequency(root: &Area, spec: &FrequencySpec, dpr: f64) -> Result<(), String> {
+pub(super) fn draw_frequency(
+    root: &Area,
+    spec: &FrequencySpec,
+    dpr: f64,
+    panels: &mut Vec<Panel>,
+) -> Result<(), String> {
     let look = Look::new(&spec.theme, dpr);
     root.fill(&look.bg).map_err(msg)?;
 
@@ -171,9 +176,11 @@ pub(super) fn draw_frequency(root: &Area, spec: &FrequencySpec, dpr: f64) -> Res
         Axis::linear(lo_p, hi_p, linear_ticks(lo_p, hi_p, y_target))
     };
     let y_span = (y_axis.lo, y_axis.hi);
+    let y_frame = y_axis.clone();
     let mut chart = builder
         .build_cartesian_2d(x_axis.clone(), y_axis)
         .map_err(msg)?;
+    panels.push(Panel::of(&chart, &x_axis, &y_frame));
     mesh(&mut chart, &look, unit, show_x_labels)?;
     lines(&mut chart, &look, &upper, y_span, &spec.x_markers)?;
 
@@ -195,6 +202,9 @@ pub(super) fn draw_frequency(root: &Area, spec: &FrequencySpec, dpr: f64) -> Res
             .map(|k| plo + f64::from(k) * step)
             .take_while(|v| *v <= phi + 1e-9)
             .collect();
+        let p_axis = Axis::linear(plo, phi, ticks);
+        let p_frame = p_axis.clone();
+        let x_frame = x_axis.clone();
         let mut chart = ChartBuilder::on(&area)
             .margin_top(look.px(6.0))
             .margin_right(right)
@@ -202,8 +212,9 @@ pub(super) fn draw_frequency(root: &Area, spec: &FrequencySpec, dpr: f64) -> Res
             .margin_bottom(look.px(2.0))
             .y_label_area_size(y_area)
             .x_label_area_size(x_area)
-            .build_cartesian_2d(x_axis, Axis::linear(plo, phi, ticks))
+            .build_cartesian_2d(x_axis, p_axis)
             .map_err(msg)?;
+        panels.push(Panel::of(&chart, &x_frame, &p_frame));
         mesh(&mut chart, &look, "°", true)?;
         lines(&mut chart, &look, &[(p, prs)], (plo, phi), &spec.x_markers)?;
     }
@@ -217,17 +228,19 @@ pub(super) fn draw_frequency(root: &Area, spec: &FrequencySpec, dpr: f64) -> Res
 /// [{name, values, color, dashed?}], y_unit, y_log?, phase?: {name, values,
 /// color}, x_markers?: [{x, label, color}], empty_text?, theme: {background,
 /// foreground, grid, font_family, font_size}, pixel_size: [w, h],
-/// pixel_ratio}): boolean` — false when the
-/// canvas is hidden and nothing was drawn; throws `{field: "plot", message}`.
+/// pixel_ratio}): false | {panels}` — false when the canvas is hidden and
+/// nothing was drawn, else where each panel sits and what its axes span
+/// (the page's cursor readout); throws `{field: "plot", message}`.
 #[wasm_bindgen]
-pub fn plot_frequency(canvas: &HtmlCanvasElement, spec: JsValue) -> Result<bool, JsValue> {
+pub fn plot_frequency(canvas: &HtmlCanvasElement, spec: JsValue) -> Result<JsValue, JsValue> {
     let obj = Obj::new(spec);
     let spec = FrequencySpec::read(&obj);
     let Some(dpr) = fit(canvas, &obj) else {
-        return Ok(false);
+        return Ok(JsValue::FALSE);
     };
     let root = backend(canvas)?.into_drawing_area();
-    draw_frequency(&root, &spec, dpr).map_err(|e| field_error("plot", &e))?;
+    let mut panels = Vec::new();
+    draw_frequency(&root, &spec, dpr, &mut panels).map_err(|e| field_error("plot", &e))?;
     root.present().map_err(|e| field_error("plot", &msg(e)))?;
-    Ok(true)
+    Ok(frame(&panels))
 }

@@ -37,6 +37,61 @@ use frequency::*;
 use style::*;
 pub use xy::plot_xy;
 
+/// Where a panel of a drawn plot sits on the canvas and what its axes
+/// span, so that the page can read the value under the pointer: the
+/// plotting area in device pixels, and each axis's ends and kind.
+struct Panel {
+    left: i32,
+    top: i32,
+    width: i32,
+    height: i32,
+    x: (f64, f64, bool),
+    y: (f64, f64, bool),
+}
+
+impl Panel {
+    /// The panel of `chart`, whose axes are `x` and `y`.
+    fn of(chart: &Chart<'_>, x: &Axis, y: &Axis) -> Panel {
+        let (xs, ys) = chart.plotting_area().get_pixel_range();
+        Panel {
+            left: xs.start,
+            top: ys.start,
+            width: xs.end - xs.start,
+            height: ys.end - ys.start,
+            x: (x.lo, x.hi, x.log),
+            y: (y.lo, y.hi, y.log),
+        }
+    }
+}
+
+/// What a plot function returns to the page: `false` when nothing was
+/// drawn (a hidden canvas), else `{panels: [{left, top, width, height,
+/// x: [lo, hi], x_log, y: [lo, hi], y_log}]}` in device pixels.
+fn frame(panels: &[Panel]) -> JsValue {
+    let list = js_sys::Array::new();
+    for p in panels {
+        let o = crate::js::Builder::new();
+        o.set("left", p.left);
+        o.set("top", p.top);
+        o.set("width", p.width);
+        o.set("height", p.height);
+        let pair = |a: f64, b: f64| {
+            let v = js_sys::Array::new();
+            v.push(&JsValue::from_f64(a));
+            v.push(&JsValue::from_f64(b));
+            v
+        };
+        o.set("x", pair(p.x.0, p.x.1));
+        o.set("x_log", p.x.2);
+        o.set("y", pair(p.y.0, p.y.1));
+        o.set("y_log", p.y.2);
+        list.push(&o.into());
+    }
+    let o = crate::js::Builder::new();
+    o.set("panels", list);
+    o.into()
+}
+
 /// Turns a drawing error into a message. The canvas's own error (a
 /// JavaScript value) is not spelled out: formatting it would bring the
 /// glue's value printer into the page for a message nobody reads.

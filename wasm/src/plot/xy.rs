@@ -100,7 +100,12 @@ impl XySpec {
     }
 }
 
-pub(super) fn draw_xy(root: &Area, spec: &XySpec, dpr: f64) -> Result<(), String> {
+pub(super) fn draw_xy(
+    root: &Area,
+    spec: &XySpec,
+    dpr: f64,
+    panels: &mut Vec<Panel>,
+) -> Result<(), String> {
     let look = Look::new(&spec.theme, dpr);
     root.fill(&look.bg).map_err(msg)?;
 
@@ -164,8 +169,16 @@ pub(super) fn draw_xy(root: &Area, spec: &XySpec, dpr: f64) -> Result<(), String
         .margin_bottom(look.px(2.0))
         .y_label_area_size(look.text_width(7) + look.px(8.0) + (look.font * 1.4) as i32)
         .x_label_area_size((look.font * 3.2).ceil() as i32)
-        .build_cartesian_2d(Axis::linear(x0, x1, x_ticks), Axis::linear(y0, y1, y_ticks))
+        .build_cartesian_2d(
+            Axis::linear(x0, x1, x_ticks.clone()),
+            Axis::linear(y0, y1, y_ticks.clone()),
+        )
         .map_err(msg)?;
+    panels.push(Panel::of(
+        &chart,
+        &Axis::linear(x0, x1, x_ticks),
+        &Axis::linear(y0, y1, y_ticks),
+    ));
 
     let x_fmt = |v: &f64| eng_label(*v, &spec.x_unit);
     let y_fmt = |v: &f64| eng_label(*v, &spec.y_unit);
@@ -231,7 +244,26 @@ pub(super) fn draw_xy(root: &Area, spec: &XySpec, dpr: f64) -> Result<(), String
     // that plotters' drawing code is instantiated once for each shape.
     let area = chart.plotting_area().strip_coord_spec();
     let (bx, by) = area.get_base_pixel();
-    for m in &spec.markers {
+    // The curves' own labels (markers without a shape: the base currents
+    // of the output characteristics) kept at least a line apart, where
+    // curves close together would print them over each other.
+    let line = look.font.ceil() as i32 + look.px(1.0);
+    let (_, area_h) = area.dim_in_pixel();
+    let mut label_ys: Vec<(usize, i32)> = spec
+        .markers
+        .iter()
+        .enumerate()
+        .filter(|(_, m)| m.shape == "none" && !m.label.is_empty() && finite(m.x, m.y))
+        .map(|(i, m)| {
+            let (_, y) = chart.backend_coord(&(m.x, m.y));
+            (i, y - by - r - look.font as i32)
+        })
+        .collect();
+    label_ys.sort_by_key(|&(_, y)| y);
+    let mut ys: Vec<i32> = label_ys.iter().map(|&(_, y)| y).collect();
+    spread(&mut ys, line, 0, area_h as i32 - line);
+    let moved: Vec<(usize, i32)> = label_ys.iter().map(|&(i, _)| i).zip(ys).collect();
+    for (k, m) in spec.markers.iter().enumerate() {
         if !finite(m.x, m.y) {
             continue;
         }
@@ -248,7 +280,11 @@ pub(super) fn draw_xy(root: &Area, spec: &XySpec, dpr: f64) -> Result<(), String
         .map_err(msg)?;
         if !m.label.is_empty() {
             let label = look.small_text().color(&col);
-            let pos = (at.0 + r + look.px(3.0), at.1 - r - look.font as i32);
+            let y = moved
+                .iter()
+                .find(|&&(i, _)| i == k)
+                .map_or(at.1 - r - look.font as i32, |&(_, y)| y);
+            let pos = (at.0 + r + look.px(3.0), y);
             area.draw(&Text::new(m.label.as_str(), pos, label))
                 .map_err(msg)?;
         }
@@ -281,6 +317,29 @@ pub(super) fn draw_xy(root: &Area, spec: &XySpec, dpr: f64) -> Result<(), String
     Ok(())
 }
 
+/// Moves sorted label positions `ys` (pixels, top to bottom) apart until
+/// each is at least `gap` below the one above, keeping them within
+/// `lo..=hi` where there is room: pushed down from the top first, then up
+/// from the bottom. Labels already far enough apart do not move.
+pub(super) fn spread(ys: &mut [i32], gap: i32, lo: i32, hi: i32) {
+    for i in 0..ys.len() {
+        let floor = if i == 0 { lo } else { ys[i - 1] + gap };
+        if ys[i] < floor {
+            ys[i] = floor;
+        }
+    }
+    for i in (0..ys.len()).rev() {
+        let ceiling = if i + 1 == ys.len() {
+            hi
+        } else {
+            ys[i + 1] - gap
+        };
+        if ys[i] > ceiling {
+            ys[i] = ceiling;
+        }
+    }
+}
+
 /// A data range opened to round tick steps, never of zero width.
 pub(super) fn fit_axis(lo: f64, hi: f64) -> (f64, f64) {
     let span = hi - lo;
@@ -301,17 +360,45 @@ pub(super) fn fit_axis(lo: f64, hi: f64) -> (f64, f64) {
 /// color, width?, dashed?}], markers?: [{x, y, label, color, shape?}],
 /// x_name, y_name, x_unit, y_unit, x_range?, y_range?, empty_text?, theme,
 /// pixel_size: [w, h], pixel_ratio}):
-/// boolean` — false when the canvas is hidden; throws `{field: "plot",
+/// false | {panels}` — false when the canvas is hidden, else where the
+/// plotting area sits and what its axes span; throws `{field: "plot",
 /// message}`.
 #[wasm_bindgen]
-pub fn plot_xy(canvas: &HtmlCanvasElement, spec: JsValue) -> Result<bool, JsValue> {
+pub fn plot_xy(canvas: &HtmlCanvasElement, spec: JsValue) -> Result<JsValue, JsValue> {
     let obj = Obj::new(spec);
     let spec = XySpec::read(&obj);
     let Some(dpr) = fit(canvas, &obj) else {
-        return Ok(false);
+        return Ok(JsValue::FALSE);
     };
     let root = backend(canvas)?.into_drawing_area();
-    draw_xy(&root, &spec, dpr).map_err(|e| field_error("plot", &e))?;
+    let mut panels = Vec::new();
+    draw_xy(&root, &spec, dpr, &mut panels).map_err(|e| field_error("plot", &e))?;
     root.present().map_err(|e| field_error("plot", &msg(e)))?;
-    Ok(true)
+    Ok(frame(&panels))
+}
+
+#[cfg(test)]
+mod tests {
+    use super::spread;
+
+    #[test]
+    fn labels_close_together_move_a_line_apart() {
+        // Three labels 4 px apart with a 12 px line: pushed down to 12 px
+        // steps; the first, at the top of its room, stays.
+        let mut ys = [100, 104, 108];
+        spread(&mut ys, 12, 0, 500);
+        assert_eq!(ys, [100, 112, 124]);
+        // Labels already apart do not move.
+        let mut ys = [10, 40, 90];
+        spread(&mut ys, 12, 0, 500);
+        assert_eq!(ys, [10, 40, 90]);
+        // At the bottom of the area they are pushed up instead.
+        let mut ys = [490, 495, 499];
+        spread(&mut ys, 12, 0, 500);
+        assert_eq!(ys, [476, 488, 500]);
+        // Above the top: brought down to it.
+        let mut ys = [-5, 0];
+        spread(&mut ys, 12, 0, 500);
+        assert_eq!(ys, [0, 12]);
+    }
 }
