@@ -85,6 +85,8 @@ mod design_file;
 mod document;
 mod error;
 mod eseries;
+#[cfg(feature = "serde")]
+mod fields;
 mod figures;
 mod format;
 mod hybrid_pi;
@@ -126,6 +128,8 @@ pub use document::{
 };
 pub use error::{Error, ErrorKind, Result, MAX_ECHO};
 pub use eseries::{ESeries, SeriesLookup};
+#[cfg(feature = "serde")]
+pub use fields::{field, Family, Field, FieldKind, Group, FIELDS};
 pub use figures::{Figure, Quantity, FIGURES};
 pub use format::{format_exact, format_si, format_value};
 pub use hybrid_pi::{SmallSignal, OPEN_RESISTANCE};

@@ -57,12 +57,47 @@ impl StageKind {
         }
     }
 
-    /// Every stage kind.
+    /// Every stage kind, in the order of the form's menu.
     pub const ALL: [StageKind; 3] = [
         StageKind::CommonEmitter,
         StageKind::CommonCollector,
         StageKind::CommonBase,
     ];
+}
+
+impl StageKind {
+    /// The stage in words: "common collector (emitter follower)".
+    pub fn label(self) -> &'static str {
+        match self {
+            StageKind::CommonEmitter => "common emitter",
+            StageKind::CommonCollector => "common collector (emitter follower)",
+            StageKind::CommonBase => "common base",
+        }
+    }
+
+    /// The parts the stage uses (the `parts` keys; the rest are not
+    /// fitted): the common emitter's bypassed emitter resistor and its
+    /// capacitor, the common base's base decoupling capacitor.
+    pub fn parts(self) -> &'static [&'static str] {
+        match self {
+            StageKind::CommonEmitter => &[
+                "r1",
+                "r2",
+                "rc",
+                "re",
+                "re_bypassed",
+                "c_emitter",
+                "rs",
+                "rl",
+                "c_in",
+                "c_out",
+            ],
+            StageKind::CommonCollector => &["r1", "r2", "rc", "re", "rs", "rl", "c_in", "c_out"],
+            StageKind::CommonBase => &[
+                "r1", "r2", "rc", "re", "rs", "rl", "c_in", "c_out", "c_base",
+            ],
+        }
+    }
 }
 
 /// Resistor power rating used when none is given, in watts (a common 0.25 W part).

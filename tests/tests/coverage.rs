@@ -456,6 +456,48 @@ const COVERAGE: &[(&str, Covered)] = &[
         "FIGURES",
         Api("names_every_figure_is_a_number_of_the_report"),
     ),
+    (
+        "field",
+        Unit(
+            "fields",
+            "fields_and_requirements_are_the_design_files_keys",
+        ),
+    ),
+    (
+        "Family",
+        Unit(
+            "fields",
+            "fields_and_requirements_are_the_design_files_keys",
+        ),
+    ),
+    (
+        "Field",
+        Unit(
+            "fields",
+            "fields_and_requirements_are_the_design_files_keys",
+        ),
+    ),
+    (
+        "FieldKind",
+        Unit(
+            "fields",
+            "fields_and_requirements_are_the_design_files_keys",
+        ),
+    ),
+    (
+        "Group",
+        Unit(
+            "fields",
+            "fields_and_requirements_are_the_design_files_keys",
+        ),
+    ),
+    (
+        "FIELDS",
+        Unit(
+            "fields",
+            "fields_and_requirements_are_the_design_files_keys",
+        ),
+    ),
     ("Rating", Api("ratings_table_names_every_rating_check")),
     ("RATINGS", Api("ratings_table_names_every_rating_check")),
     ("Bound", Api("requirements_table_is_the_file_format")),
@@ -569,6 +611,7 @@ const CORE_MODULES: &[(&str, &str)] = &[
     ("format", include_str!("../../core/src/format.rs")),
     ("synthesis", include_str!("../../core/src/synthesis/mod.rs")),
     ("tolerance", include_str!("../../core/src/tolerance/mod.rs")),
+    ("fields", include_str!("../../core/src/fields.rs")),
 ];
 
 /// The names of every `pub use` item of `lib`: `pub use a::{B, c};` and

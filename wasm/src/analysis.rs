@@ -330,3 +330,148 @@ pub fn tables() -> JsValue {
 pub fn unusual(key: JsValue, value: f64) -> Option<String> {
     stagewright::unusual(&key.as_string()?, value)
 }
+
+/// The value a field takes when the file leaves it out, as the form shows
+/// it: the ambient and the tolerance box's defaults, from the core.
+fn default_text(key: &str) -> Option<String> {
+    let t = stagewright::Tolerances::default();
+    let share = |x: f64| {
+        let mut s = stagewright::format_exact(x * 100.0, "");
+        s.push_str(" %");
+        s
+    };
+    Some(match key {
+        "ambient" => stagewright::format_exact(stagewright::DEFAULT_AMBIENT_CELSIUS, ""),
+        "tolerances.resistor_tolerance" => share(t.resistor_tolerance),
+        "tolerances.capacitor_tolerance" => share(t.capacitor_tolerance),
+        "tolerances.supply_tolerance" => share(t.supply_tolerance),
+        "tolerances.vbe_spread" => stagewright::format_exact(t.vbe_spread, "V"),
+        "tolerances.ambient_min" => stagewright::format_exact(t.ambient_min.celsius(), ""),
+        "tolerances.ambient_max" => stagewright::format_exact(t.ambient_max.celsius(), ""),
+        _ => return None,
+    })
+}
+
+/// The design form's schema, from the core's tables: the groups of
+/// fields (`stagewright::FIELDS`, the requirements from
+/// `stagewright::REQUIREMENTS`), the stages with their words and the parts
+/// each uses, so that the page keeps no list of fields of its own.
+///
+/// JS: `fields() -> {format, stages: [[name, label]], stage_parts: {name:
+/// [part]}, groups: [{id, legend, fields: [{path, key, unit, desc, kind,
+/// maxlength?, series?, options?, default?}]}]}`; `kind` is "value", "text",
+/// "textarea" or "select"; `series` "R" or "C" for a standard part;
+/// `options` [[value, words]] for a choice (null for the preset, whose
+/// menu comes from `presets()`).
+#[wasm_bindgen]
+pub fn fields() -> JsValue {
+    use stagewright::{Family, FieldKind, Group, Polarity, StageKind};
+    let pair = |a: &str, b: &str| {
+        let p = js_sys::Array::new();
+        p.push(&JsValue::from_str(a));
+        p.push(&JsValue::from_str(b));
+        p
+    };
+    let stages = js_sys::Array::new();
+    let stage_parts = Builder::new();
+    for s in StageKind::ALL {
+        stages.push(&pair(s.name(), s.label()));
+        let parts = js_sys::Array::new();
+        for p in s.parts() {
+            parts.push(&JsValue::from_str(p));
+        }
+        stage_parts.set(s.name(), parts);
+    }
+    let one = |key: &str, desc: &str, unit: &str, kind: &str| {
+        let o = Builder::new();
+        let path = js_sys::Array::new();
+        for k in key.split('.') {
+            path.push(&JsValue::from_str(k));
+        }
+        o.set("path", path);
+        o.set("key", key.rsplit('.').next().unwrap_or(key));
+        o.set("unit", unit);
+        o.set("desc", desc);
+        o.set("kind", kind);
+        o
+    };
+    let groups = js_sys::Array::new();
+    let add_group = |id: &str, legend: &str, list: js_sys::Array| {
+        let g = Builder::new();
+        g.set("id", id);
+        g.set("legend", legend);
+        g.set("fields", list);
+        groups.push(&g.into());
+    };
+    for group in [
+        Group::Stage,
+        Group::Transistor,
+        Group::Parts,
+        Group::Tolerances,
+    ] {
+        let list = js_sys::Array::new();
+        for f in stagewright::FIELDS.iter().filter(|f| f.group == group) {
+            let kind = match f.kind {
+                FieldKind::Value => "value",
+                FieldKind::Text(_) => "text",
+                FieldKind::Notes(_) => "textarea",
+                FieldKind::Choice => "select",
+            };
+            let o = one(f.key, f.label, f.unit, kind);
+            if let FieldKind::Text(n) | FieldKind::Notes(n) = f.kind {
+                o.set("maxlength", n as f64);
+            }
+            if let Some(d) = default_text(f.key) {
+                o.set("default", d);
+            }
+            match f.family {
+                Some(Family::Resistor) => o.set("series", "R"),
+                Some(Family::Capacitor) => o.set("series", "C"),
+                None => {}
+            }
+            if f.kind == FieldKind::Choice {
+                let options = js_sys::Array::new();
+                match f.key {
+                    "stage" => {
+                        for s in StageKind::ALL {
+                            options.push(&pair(s.name(), s.label()));
+                        }
+                        o.set("options", options);
+                    }
+                    "transistor.polarity" => {
+                        options.push(&pair("", "from the class"));
+                        // (Written out: `to_uppercase` would bring in
+                        // Unicode's case tables, several KB of the page.)
+                        for (p, words) in [(Polarity::Npn, "NPN"), (Polarity::Pnp, "PNP")] {
+                            options.push(&pair(p.name(), words));
+                        }
+                        o.set("options", options);
+                    }
+                    _ => o.set("options", JsValue::NULL),
+                }
+            }
+            list.push(&o.into());
+        }
+        add_group(group.id(), group.legend(), list);
+        // The requirements block sits between the parts and the tolerances.
+        if group == Group::Parts {
+            let list = js_sys::Array::new();
+            for r in stagewright::REQUIREMENTS {
+                let bound = match r.bound {
+                    stagewright::Bound::AtLeast => "at least",
+                    stagewright::Bound::AtMost => "at most",
+                };
+                let desc = [r.label(), " ", bound].concat();
+                let key = ["requirements.", r.key].concat();
+                list.push(&one(&key, &desc, r.unit, "value").into());
+            }
+            add_group("requirements", "Requirements", list);
+        }
+    }
+    let o = Builder::new();
+    o.set("format", stagewright::DESIGN_FORMAT);
+    o.set("stages", stages);
+    o.set("stage_parts", stage_parts);
+    o.set("groups", groups);
+    o.into()
+}

@@ -29,7 +29,7 @@ mod tolerance;
 mod values;
 
 pub use analysis::{
-    analyze, compute, preset_data, presets, read_design_text, tables, unusual, utf8_text,
+    analyze, compute, fields, preset_data, presets, read_design_text, tables, unusual, utf8_text,
 };
 pub use plot::{plot_frequency, plot_xy};
 pub use spec::design_from_spec;

@@ -24,7 +24,7 @@ import { withForm } from "./form.js";
 import { upgradePlaceholders, watchPlaceholders } from "./placeholders.js";
 import { withPlots } from "./plots.js";
 import { DEFERRAL, withResults } from "./results.js";
-import { EXAMPLE_DESIGN, FIELD_BY_KEY, FORMAT, GROUPS, STAGE_PARTS } from "./schema.js";
+import { EXAMPLE_DESIGN, FIELD_BY_KEY, FORMAT, GROUPS, STAGE_PARTS, schemaReady, setSchema } from "./schema.js";
 import { withDiagram } from "./schematic.js";
 import { withShare } from "./share.js";
 import styles from "./styles.css";
@@ -353,7 +353,7 @@ export class StagewrightCalc extends withShare(withPlots(withResults(withDiagram
   _loadDesign(design, isExample) {
     const d = clone(design);
     d.format = FORMAT;
-    if (!own(STAGE_PARTS, d.stage)) d.stage = "common-emitter";
+    if (schemaReady() && !own(STAGE_PARTS, d.stage)) d.stage = "common-emitter";
     this._design = d;
     this._isExample = !!isExample;
     this._invalid.clear();
@@ -415,7 +415,8 @@ export class StagewrightCalc extends withShare(withPlots(withResults(withDiagram
     this._form.addEventListener("submit", (e) => e.preventDefault());
     this._seriesR = this._seriesSelect("R", "resistor series");
     this._seriesC = this._seriesSelect("C", "capacitor series");
-    for (const g of GROUPS) this._form.append(this._buildGroup(g));
+    // The fields come from the engine's schema: built once it has started.
+    this._form.append(h("p", { class: "hint form-wait" }, "Starting the engine…"));
     this._formBox = h("details", { class: "design-box", open: true },
       h("summary", null, "Edit the design"), this._form);
     this._formBox.addEventListener("toggle", () => {
@@ -610,6 +611,11 @@ export class StagewrightCalc extends withShare(withPlots(withResults(withDiagram
   /** The panel of a view, built (hidden) if it was not yet, or null. */
   _viewPanel(name) {
     let panel = this._panels.get(name);
+    // A view's fields come from the engine's schema: built once it runs.
+    if (!panel && this._built && name !== "calculator" && !this._api) {
+      this._wantView = name;
+      return null;
+    }
     if (!panel && this._built) {
       panel = this._buildView(name);
       if (!panel) return null;
@@ -640,6 +646,17 @@ export class StagewrightCalc extends withShare(withPlots(withResults(withDiagram
     e.preventDefault();
     this.showView(tabs[j].getAttribute("data-view"));
     tabs[j].focus();
+  }
+
+  /** The design form, from the engine's schema (its tolerances group is
+   * the tolerance view's box). */
+  _buildForm() {
+    if (this._formBuilt || !schemaReady()) return;
+    this._formBuilt = true;
+    this._form.textContent = "";
+    for (const g of GROUPS) if (g.id !== "tolerances") this._form.append(this._buildGroup(g));
+    this._applyReadonly();
+    if (this._design) this._fillForm();
   }
 
   /* ---------------- attributes ---------------- */
@@ -689,6 +706,8 @@ export class StagewrightCalc extends withShare(withPlots(withResults(withDiagram
   _engineReady(api) {
     if (this._api === api) return;
     this._api = api;
+    setSchema(typeof api.fields === "function" ? api.fields() : null);
+    this._buildForm();
     // The result cards' rows and the checks' names: the core's tables.
     this._buildResultCards(typeof api.tables === "function" ? api.tables() : null);
     const presetField = this._fields.get("preset");
@@ -705,6 +724,11 @@ export class StagewrightCalc extends withShare(withPlots(withResults(withDiagram
     }
     if (this._fillSpecPresets && this._specInputs) this._fillSpecPresets(api);
     if (this._onEngine) this._onEngine(api);
+    if (this._wantView) {
+      const v = this._wantView;
+      this._wantView = null;
+      this.showView(v);
+    }
     if (this._pendingText !== undefined) {
       this._loadText(this._pendingText);
       return;

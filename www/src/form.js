@@ -7,7 +7,7 @@
 import { getPath, own, setPath, storedValue } from "./design.js";
 import { h } from "./dom.js";
 import { asFieldError, presetData } from "./engine.js";
-import { SERIES_CHOICES, STAGES, STAGE_PARTS } from "./schema.js";
+import { SERIES_CHOICES, STAGES, STAGE_PARTS, schemaReady } from "./schema.js";
 
 /** The form's methods, mixed into the element (element.js). */
 export const withForm = (Base) => class extends Base {
@@ -177,7 +177,7 @@ export const withForm = (Base) => class extends Base {
   }
 
   _placeholderValue(spec) {
-    if (spec.key === "ambient") return "25";
+    if (spec.default !== undefined) return spec.default;
     const preset = this._presetValues();
     if (preset && spec.path[0] === "transistor" && preset[spec.key] !== undefined && this._api) {
       const v = preset[spec.key];
@@ -187,7 +187,7 @@ export const withForm = (Base) => class extends Base {
   }
 
   _placeholderText(spec) {
-    if (spec.key === "ambient") return "default 25 °C";
+    if (spec.default !== undefined) return `default ${spec.default}${spec.unit ? " " + spec.unit : ""}`;
     if (spec.path[0] === "transistor") {
       return getPath(this._design, ["transistor", "preset"]) ? "from the class" : "not given";
     }
@@ -267,6 +267,7 @@ export const withForm = (Base) => class extends Base {
   }
 
   _applyStage() {
+    if (!schemaReady()) return;
     const stage = this._design.stage;
     const used = own(STAGE_PARTS, stage) || STAGE_PARTS["common-emitter"];
     const unused = [];

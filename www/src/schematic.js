@@ -4,7 +4,7 @@
 
 import { getPath, own } from "./design.js";
 import { sv } from "./dom.js";
-import { STAGE_PARTS } from "./schema.js";
+import { STAGE_PARTS, schemaReady } from "./schema.js";
 
 /** Draws one stage into an <svg>, parts named as in the design file. */
 class Sketch {
@@ -405,6 +405,8 @@ function drawPnpStage(k, stage, supplyText, { RAIL, BUS, BX, BY, CX }) {
  * node voltages of the report. */
 export const withDiagram = (Base) => class extends Base {
   _renderDiagram() {
+    // The stage's parts come from the engine's schema.
+    if (!schemaReady()) return;
     const d = this._design;
     const api = this._api;
     const values = {};

@@ -16,7 +16,7 @@ import { STAGES } from "../schema.js";
 const SPEC_FIELDS = [
   { group: "Stage" },
   { key: "title", path: ["title"], label: "title", value: "", hint: "names the design it makes" },
-  { key: "stage", path: ["stage"], label: "stage", kind: "select", options: STAGES, value: "common-emitter" },
+  { key: "stage", path: ["stage"], label: "stage", kind: "select", options: null, value: "common-emitter" },
   { key: "preset", path: ["transistor", "preset"], label: "transistor", kind: "select", options: [["general-purpose-npn", "general-purpose-npn"]], value: "general-purpose-npn" },
   { key: "polarity", path: ["transistor", "polarity"], label: "polarity", kind: "select", options: [["", "from the class"], ["npn", "NPN"], ["pnp", "PNP"]], value: "" },
   { key: "supply", path: ["supply"], label: "supply", value: "12", hint: "V" },
@@ -93,7 +93,7 @@ export const withSpecView = (Base) => class extends Base {
       }
       const fid = id("spec-" + f.key);
       const input = f.kind === "select"
-        ? h("select", { id: fid, "data-key": f.key }, ...f.options.map(([v, t]) => h("option", { value: v }, t)))
+        ? h("select", { id: fid, "data-key": f.key }, ...(f.key === "stage" ? STAGES : f.options).map(([v, t]) => h("option", { value: v }, t)))
         : h("input", { type: "text", id: fid, "data-key": f.key, value: f.value || "", autocomplete: "off", spellcheck: "false" });
       input.value = f.value;
       this._specInputs[f.key] = input;

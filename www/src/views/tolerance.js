@@ -7,18 +7,14 @@
 import { clone, getPath, setPath, storedValue } from "../design.js";
 import { h } from "../dom.js";
 import { asFieldError } from "../engine.js";
-import { STAGES } from "../schema.js";
+import { GROUPS, STAGES } from "../schema.js";
 
-/** The design file's `tolerances` block, field by field: key, label,
- * unit shown, default (README, "tolerances"). */
-const BOX_FIELDS = [
-  ["resistor_tolerance", "resistors ±", "share", "5 %"],
-  ["capacitor_tolerance", "capacitors ±", "share", "20 %"],
-  ["supply_tolerance", "supply ±", "share", "5 %"],
-  ["vbe_spread", "VBE ±", "V", "0.05"],
-  ["ambient_min", "ambient from", "°C", "0"],
-  ["ambient_max", "ambient to", "°C", "50"],
-];
+/** The design file's `tolerances` block, field by field, from the
+ * engine's schema: [key, label, unit, default]. */
+function boxFields() {
+  const g = GROUPS.find((x) => x.id === "tolerances");
+  return g ? g.fields.map((f) => [f.key, f.desc, f.unit, f.default || ""]) : [];
+}
 
 /** A yield as the command line prints it: never rounded up to 100 %. */
 function yieldText(y) {
@@ -58,7 +54,7 @@ export const withToleranceView = (Base) => class extends Base {
     this._boxInputs = {};
     this._boxErrors = {};
     const box = h("fieldset", { class: "tol-box" }, h("legend", null, "Tolerance box (the design's tolerances block)"));
-    for (const [key, label, unit, dflt] of BOX_FIELDS) {
+    for (const [key, label, unit, dflt] of boxFields()) {
       const fid = id("tol-" + key);
       const input = h("input", { type: "text", id: fid, "data-key": key, placeholder: dflt, autocomplete: "off", spellcheck: "false" });
       const error = h("p", { class: "error", hidden: true, id: id("tol-e-" + key) });
@@ -67,7 +63,7 @@ export const withToleranceView = (Base) => class extends Base {
       this._boxInputs[key] = input;
       this._boxErrors[key] = error;
       box.append(h("div", { class: "tol-box-field" },
-        h("label", { for: fid }, label), input, h("span", { class: "unit" }, unit === "share" ? "" : unit), error));
+        h("label", { for: fid }, label), input, h("span", { class: "unit" }, unit === "%" ? "" : unit), error));
     }
     box.append(h("p", { class: "hint" }, "A share is a fraction (0.01) or a percentage (1 %); empty fields take the default shown. hFE runs over the transistor's own hfe_min to hfe_max (Calculator view)."));
     this._tolStale = h("p", { class: "tol-stale", role: "status", hidden: true });
@@ -85,7 +81,7 @@ export const withToleranceView = (Base) => class extends Base {
   /** The box's fields from the design's tolerances block. */
   _fillBox() {
     if (!this._boxInputs) return;
-    for (const [key] of BOX_FIELDS) {
+    for (const [key] of boxFields()) {
       const v = getPath(this._design || {}, ["tolerances", key]);
       this._boxInputs[key].value = v === undefined || v === null ? "" : String(v);
       this._boxErrors[key].hidden = true;
