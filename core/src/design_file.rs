@@ -432,6 +432,118 @@ impl Design {
     }
 }
 
+impl DesignDocument {
+    /// Sets the field at `path` (a dotted path: `supply`, `parts.rc`,
+    /// `transistor.preset`, `requirements.min_swing`,
+    /// `tolerances.vbe_spread`, `title`) to `text` as typed, or removes it
+    /// with `None`: one edit, for a page that keeps a document open. A
+    /// value is kept as a number when the text is a plain decimal number
+    /// (`12`, `2.2e3`), else as the text typed (`4k7`, `"5 %"`), which
+    /// [`Design::try_from`] reads in the field's unit; text fields keep the
+    /// text as it is. A block left empty is removed.
+    ///
+    /// # Errors
+    /// [`ErrorKind::UnknownKey`] naming `path` (with the nearest key) for
+    /// a path the design file does not have.
+    pub fn set(&mut self, path: &str, text: Option<&str>) -> Result<()> {
+        let typed = text.map(typed_of);
+        let words = text.map(String::from);
+        let ok = match path.split_once('.') {
+            None => match path {
+                "title" => set_to(&mut self.title, words),
+                "notes" => set_to(&mut self.notes, words),
+                "stage" => set_to(&mut self.stage, words.map(|w| String::from(w.trim()))),
+                "supply" => set_to(&mut self.supply, typed),
+                "ambient" => set_to(&mut self.ambient, typed),
+                _ => false,
+            },
+            Some(("transistor", key)) => {
+                let b = self.transistor.get_or_insert_with(Default::default);
+                let words = words.map(|w| String::from(w.trim()));
+                let ok = match key {
+                    "preset" => set_to(&mut b.preset, words),
+                    "polarity" => set_to(&mut b.polarity, words),
+                    _ => b.set(key, typed),
+                };
+                if self
+                    .transistor
+                    .as_ref()
+                    .is_some_and(|b| *b == TransistorDocument::default())
+                {
+                    self.transistor = None;
+                }
+                ok
+            }
+            Some(("parts", key)) => {
+                let ok = self
+                    .parts
+                    .get_or_insert_with(Default::default)
+                    .set(key, typed);
+                if self
+                    .parts
+                    .as_ref()
+                    .is_some_and(|b| *b == PartsDocument::default())
+                {
+                    self.parts = None;
+                }
+                ok
+            }
+            Some(("requirements", key)) => {
+                let ok = self
+                    .requirements
+                    .get_or_insert_with(Default::default)
+                    .set(key, typed);
+                if self
+                    .requirements
+                    .as_ref()
+                    .is_some_and(|b| *b == RequirementsDocument::default())
+                {
+                    self.requirements = None;
+                }
+                ok
+            }
+            Some(("tolerances", key)) => {
+                let ok = self
+                    .tolerances
+                    .get_or_insert_with(Default::default)
+                    .set(key, typed);
+                if self
+                    .tolerances
+                    .as_ref()
+                    .is_some_and(|b| *b == TolerancesDocument::default())
+                {
+                    self.tolerances = None;
+                }
+                ok
+            }
+            _ => false,
+        };
+        if ok {
+            Ok(())
+        } else {
+            Err(DESIGN_SCHEMA.unknown(path))
+        }
+    }
+}
+
+/// Sets `slot`; always true (the key exists).
+fn set_to<T>(slot: &mut Option<T>, value: Option<T>) -> bool {
+    *slot = value;
+    true
+}
+
+/// A value as typed: a plain decimal number as a number, else the text.
+fn typed_of(text: &str) -> Typed {
+    let t = text.trim();
+    let plain = t.starts_with(|c: char| c.is_ascii_digit() || matches!(c, '.' | '-' | '+'))
+        && t.chars()
+            .all(|c| c.is_ascii_digit() || matches!(c, '.' | '-' | '+' | 'e' | 'E'));
+    match t.parse::<f64>() {
+        Ok(v) if plain && v.is_finite() => Typed::Number(v),
+        _ => Typed::Text(String::from(text)),
+    }
+}
+
 impl TryFrom<DesignDocument> for Design {
     type Error = Error;
 
@@ -615,6 +727,56 @@ mod tests {
     use crate::error::ErrorKind;
     use crate::presets::preset;
     use alloc::string::ToString;
+
+    #[test]
+    fn one_edit_at_a_time_reads_as_the_whole_file_would() {
+        // Edits applied to an open document give the design that the file
+        // written with them gives, value for value.
+        let text = r#"{"format": "stagewright/1", "stage": "common-emitter", "supply": 12,
+            "transistor": {"preset": "general-purpose-npn"},
+            "parts": {"r1": "47k", "r2": "10k", "rc": "3k9", "re": "220", "re_bypassed": "680",
+                      "c_emitter": "100u", "rs": "600", "rl": "10k", "c_in": "1u", "c_out": "4u7"}}"#;
+        let mut doc = DesignDocument::from_json(text).expect("reads");
+        doc.set("parts.rc", Some("4k7")).expect("a part");
+        doc.set("supply", Some("15")).expect("the supply");
+        doc.set("requirements.min_swing", Some("2 V"))
+            .expect("a requirement");
+        doc.set("tolerances.resistor_tolerance", Some("1 %"))
+            .expect("a share");
+        doc.set("transistor.hfe", Some("250"))
+            .expect("a device value");
+        doc.set("title", Some("  Edited  ")).expect("text as typed");
+        let edited = Design::try_from(doc.clone()).expect("valid");
+        let whole = Design::from_json(
+            &text.replace("\"3k9\"", "\"4k7\"").replace("\"supply\": 12", "\"supply\": 15").replace(
+                "\"preset\": \"general-purpose-npn\"}",
+                "\"preset\": \"general-purpose-npn\", \"hfe\": 250}, \"title\": \"  Edited  \", \"requirements\": {\"min_swing\": \"2 V\"}, \"tolerances\": {\"resistor_tolerance\": \"1 %\"}",
+            ),
+        )
+        .expect("the same file, written whole");
+        assert_eq!(edited, whole);
+        assert_eq!(
+            doc.supply,
+            Some(Typed::Number(15.0)),
+            "a plain number is kept as a number"
+        );
+        // Removing the only requirement removes the block.
+        doc.set("requirements.min_swing", None).expect("removed");
+        assert!(doc.requirements.is_none());
+        // A path the file does not have: the reader's message, with the
+        // nearest key.
+        let e = doc.set("parts.rcc", Some("1k")).expect_err("unknown");
+        assert!(
+            matches!(
+                e.kind(),
+                ErrorKind::UnknownKey {
+                    suggestion: Some("parts.rc")
+                }
+            ),
+            "{e}"
+        );
+        assert!(doc.set("nonsense", Some("1")).is_err());
+    }
 
     /// A small valid design used by several tests: a common-emitter stage
     /// from a preset, with one value typed as text.

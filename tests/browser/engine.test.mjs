@@ -88,6 +88,51 @@ describe("the engine in the page", () => {
     assert.notEqual(await vcText(), shownBefore, "the collector voltage on screen follows");
   });
 
+  test("a run of edits, one field each through the engine's session, ends at the report of the file they make", async () => {
+    // Keystrokes reach the engine one field at a time (Session.set), with
+    // no design text sent; invalid and emptied entries, a requirement, a
+    // device value and a change of stage (after which the session is made
+    // again) in between. The end state must be the command line's report
+    // of the design the page exports.
+    const file = path.join(root, "examples", "transducer-gain-stage.json");
+    await reportFor(page, readFileSync(file, "utf8"));
+    const stats = () => page.evaluate(() => document.querySelector("stagewright-calc").engineStats);
+    const start = await stats();
+    const type = async (key, text) => {
+      await page.locator(`stagewright-calc .field[data-key='${key}'] input`).fill(text);
+    };
+    await type("rc", "4k3");
+    await type("rc", "4k3x"); // not understood: the last good value stays
+    await type("re", "270");
+    await type("min_swing", "2");
+    await type("hfe", "300");
+    await type("rl", "22k");
+    await type("hfe", ""); // back to the class's value
+    await page.locator("stagewright-calc .field[data-key='stage'] select").selectOption("common-collector");
+    await type("re", "2k2");
+    await type("rc", "");
+    await type("rl", "4k7");
+    const got = await page.evaluate(() => {
+      const el = document.querySelector("stagewright-calc");
+      return { report: el.report, design: el.design };
+    });
+    const end = await stats();
+    // fill() clears then types: one edit event per fill. Ten value edits,
+    // each one field through the session; the whole design is sent once
+    // more, for the change of stage; every accepted edit is analysed.
+    assert.equal(end.sets - start.sets, 10, "each value edit sends one field");
+    assert.equal(end.sessions - start.sessions, 1, "the whole design is sent again only after the change of stage");
+    assert.equal(end.computes - start.computes, 10, "ten accepted edits, ten analyses (the refused entry is not analysed)");
+    assert.equal(got.design.stage, "common-collector");
+    assert.equal(got.design.parts.rl, "4k7");
+    assert.equal(got.design.parts.rc, undefined, "an emptied field leaves the file");
+    assert.equal(got.design.transistor.hfe, undefined);
+    const ended = path.join(tmp, "edited-run.json");
+    writeFileSync(ended, JSON.stringify(got.design));
+    assert.deepEqual(jsonDifferences(got.report, cliReport(ended)), [], "the page's report is the exported design's");
+    assert.deepEqual(browser.errors, []);
+  });
+
   test("an invalid entry shows its message in place and the last good results stay", async () => {
     const good = await page.evaluate(() => document.querySelector("stagewright-calc").report);
     const shownBefore = await page.evaluate(() =>

@@ -190,11 +190,17 @@ fn curves(design: &Design, analysis: &Analysis) -> JsValue {
 ///   `Float64Array`s).
 #[wasm_bindgen]
 pub fn compute(design_json: JsValue, points_per_decade: f64) -> Result<JsValue, JsValue> {
-    let (design, analysis) = solve(&design_json)?;
+    let design = read_design(&design_json)?;
+    compute_design(&design, points_per_decade)
+}
+
+/// [`compute`] of a design already read (also `Session::compute`).
+pub(crate) fn compute_design(design: &Design, points_per_decade: f64) -> Result<JsValue, JsValue> {
+    let analysis = design.analyze().map_err(|e| core_error(&e))?;
     let out = Builder::new();
-    out.set("report", report(&design, &analysis)?);
+    out.set("report", report(design, &analysis)?);
     out.set("sweep", sweep(&analysis, points_per_decade)?);
-    out.set("curves", curves(&design, &analysis));
+    out.set("curves", curves(design, &analysis));
     Ok(out.into())
 }
 

@@ -24,6 +24,7 @@
 mod analysis;
 mod js;
 mod plot;
+mod session;
 mod spec;
 mod tolerance;
 mod values;
@@ -32,6 +33,7 @@ pub use analysis::{
     analyze, compute, fields, preset_data, presets, read_design_text, tables, unusual, utf8_text,
 };
 pub use plot::{plot_frequency, plot_xy};
+pub use session::Session;
 pub use spec::design_from_spec;
 pub use tolerance::Tolerance;
 pub use values::{format_si, parse_value, series_lookup};

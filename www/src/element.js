@@ -19,7 +19,7 @@
 import { designText, encodeDesign } from "./codec.js";
 import { clone, getPath, ordered, own } from "./design.js";
 import { h, sv } from "./dom.js";
-import { asFieldError, enginePresets, hasAnalysis, loadEngine, mark, runAnalysis } from "./engine.js";
+import { SWEEP_PER_DECADE, asFieldError, enginePresets, hasAnalysis, loadEngine, mark, runAnalysis } from "./engine.js";
 import { withForm } from "./form.js";
 import { upgradePlaceholders, watchPlaceholders } from "./placeholders.js";
 import { withPlots } from "./plots.js";
@@ -124,7 +124,11 @@ export class StagewrightCalc extends withShare(withPlots(withResults(withDiagram
     this._analysis = null;
     this._api = null;
     this._built = false;
-    this._fields = new Map(); // key -> {spec, input, understood, snap, error, row}
+    this._fields = new Map(); // key -> {spec, input, understood, snap, error, warn, row}
+    this._echo = new Map(); // key -> the engine's echo of its value ("4.7 kΩ"), for the diagram
+    // How the engine was called: sessions made from a whole design, one-field
+    // edits sent to a session, analyses (engineStats; the tests read them).
+    this._stats = { sessions: 0, sets: 0, computes: 0 };
     this._invalid = new Map(); // key -> message
     this._series = { R: "E24", C: "E6" };
     this._plotFrame = 0;
@@ -184,6 +188,13 @@ export class StagewrightCalc extends withShare(withPlots(withResults(withDiagram
       return;
     }
     this._loadText(text);
+  }
+
+  /** How this element has called the engine so far: `sessions` (a whole
+   * design sent, after a load or a change of stage), `sets` (one field
+   * sent, per keystroke), `computes` (analyses). A diagnostic. */
+  get engineStats() {
+    return Object.assign({}, this._stats);
   }
 
   /** The last report computed (null before the first one). */
@@ -355,6 +366,7 @@ export class StagewrightCalc extends withShare(withPlots(withResults(withDiagram
     d.format = FORMAT;
     if (schemaReady() && !own(STAGE_PARTS, d.stage)) d.stage = "common-emitter";
     this._design = d;
+    this._sessionStale = true;
     this._isExample = !!isExample;
     this._invalid.clear();
     this._report = null;
@@ -760,8 +772,9 @@ export class StagewrightCalc extends withShare(withPlots(withResults(withDiagram
     if (!hasAnalysis(api)) return;
     let out;
     try {
-      out = runAnalysis(api, design);
+      out = this._compute(design);
     } catch (err) {
+      this._sessionStale = true;
       const e = asFieldError(err);
       this._showAnalysisError(e);
       this._markStale(true);
@@ -784,6 +797,32 @@ export class StagewrightCalc extends withShare(withPlots(withResults(withDiagram
       mark("stagewright:first-report");
     }
     this._emit("stagewright-report", { report: clone(out.report), design });
+  }
+
+  /** The analysis of `design` (the exported design): through the
+   * engine's session, made again from `design` after a load or an edit
+   * the session was not told of. */
+  _compute(design) {
+    const api = this._api;
+    if (typeof api.Session !== "function") return runAnalysis(api, design);
+    if (!this._session || this._sessionStale) {
+      this._dropSession();
+      this._session = new api.Session(JSON.stringify(design));
+      this._sessionStale = false;
+      this._stats.sessions++;
+    }
+    this._stats.computes++;
+    return this._session.compute(SWEEP_PER_DECADE);
+  }
+
+  /** The session when it holds the design on screen, else null. */
+  _liveSession() {
+    return this._session && !this._sessionStale ? this._session : null;
+  }
+
+  _dropSession() {
+    if (this._session) this._session.free();
+    this._session = null;
   }
 
   _emit(type, detail) {

@@ -84,7 +84,7 @@ export function loadEngine() {
  */
 
 /** Points a decade of the plotted sweep. */
-const SWEEP_PER_DECADE = 20;
+export const SWEEP_PER_DECADE = 20;
 
 export function hasAnalysis(api) {
   return !!api && typeof api.compute === "function";

@@ -116,11 +116,49 @@ export const withForm = (Base) => class extends Base {
     const spec = f.spec;
     if (spec.kind !== "value") return;
     const text = f.input.value.trim();
+    if (!text || !this._api) return this._showField(f, text ? { ok: true } : { ok: true, empty: true });
+    return this._showField(f, this._fieldStatus(f, text));
+  }
+
+  /** What the engine makes of a field's text, in the shape of the
+   * session's set(): {ok, empty?, value?, echo?, nearest?, unusual?,
+   * error?}, from the separate exports (for a refresh of every field). */
+  _fieldStatus(f, text) {
+    const api = this._api;
+    const spec = f.spec;
+    let value;
+    try {
+      value = api.parse_value(spec.key, text, spec.unit);
+    } catch (err) {
+      return { ok: false, error: asFieldError(err) };
+    }
+    const r = { ok: true, value, echo: api.format_si(value, spec.unit) };
+    const odd = typeof api.unusual === "function" ? api.unusual(spec.key, value) : null;
+    if (odd) r.unusual = odd;
+    if (spec.series && value > 0) {
+      const name = this._series[spec.series];
+      let look = null;
+      try {
+        look = api.series_lookup(name, value);
+      } catch (e) {
+        look = null;
+      }
+      if (look) r.nearest = { series: name, value: look.nearest, echo: api.format_si(look.nearest, spec.unit), error: look.error };
+    }
+    return r;
+  }
+
+  /** Shows a field's status: what it was understood as, the nearest
+   * standard value (and the button that snaps to it), a warning for an
+   * unusual value, or the core's message. Returns {ok, empty?, value?,
+   * message?}. */
+  _showField(f, r) {
+    const spec = f.spec;
     f.snap.hidden = true;
     f.std.hidden = true;
     if (f.warn) f.warn.hidden = true;
-    const api = this._api;
-    if (!text) {
+    if (r.empty || !r.ok) this._echo.delete(spec.key);
+    if (r.empty) {
       f.understood.textContent = this._placeholderText(spec);
       f.understood.classList.add("muted");
       f.input.placeholder = this._placeholderValue(spec);
@@ -128,51 +166,40 @@ export const withForm = (Base) => class extends Base {
       return { ok: true, empty: true };
     }
     f.understood.classList.remove("muted");
-    if (!api) {
-      f.understood.textContent = "";
-      return { ok: true };
-    }
-    let value;
-    try {
-      value = api.parse_value(spec.key, text, spec.unit);
-    } catch (err) {
-      const e = asFieldError(err);
+    if (!r.ok) {
+      const e = asFieldError(r.error);
       f.understood.textContent = "";
       this._setFieldError(f, e.message);
       return { ok: false, message: e.message };
     }
     this._setFieldError(f, "");
-    f.understood.textContent = "= " + api.format_si(value, spec.unit);
-    const odd = typeof api.unusual === "function" ? api.unusual(spec.key, value) : null;
-    if (f.warn && odd) {
-      f.warn.textContent = `${odd}: check the entry.`;
+    if (r.echo === undefined) {
+      f.understood.textContent = "";
+      return { ok: true };
+    }
+    f.understood.textContent = "= " + r.echo;
+    if (r.unusual && f.warn) {
+      f.warn.textContent = `${r.unusual}: check the entry.`;
       f.warn.hidden = false;
     }
-    if (spec.series && value > 0 && !this.hasAttribute("readonly")) this._showSeries(f, value);
-    return { ok: true, value };
+    if (r.nearest && !this.hasAttribute("readonly")) this._showSeries(f, r.nearest);
+    this._echo.set(spec.key, r.echo);
+    return { ok: true, value: r.value };
   }
 
-  _showSeries(f, value) {
-    const api = this._api;
-    const name = this._series[f.spec.series];
-    let look = null;
-    try {
-      look = api.series_lookup(name, value);
-    } catch (e) {
-      look = null;
-    }
-    if (!look) return;
-    if (Math.abs(look.error) < 1e-6) {
+  _showSeries(f, n) {
+    const name = n.series;
+    if (Math.abs(n.error) < 1e-6) {
       f.std.textContent = `${name} value`;
       f.std.hidden = false;
       return;
     }
-    const target = api.format_si(look.nearest, f.spec.unit);
+    const target = n.echo;
     f.snap.textContent = "";
     f.snap.append(h("span", { class: "snap-series" }, name), " ", target);
     f.snap.setAttribute("aria-label", `Use the nearest ${name} value, ${target}, for ${f.spec.key}`);
-    f.snap.title = `Nearest ${name} value (${(look.error * 100).toFixed(1)} % away)`;
-    f.snap.dataset.value = String(look.nearest);
+    f.snap.title = `Nearest ${name} value (${(n.error * 100).toFixed(1)} % away)`;
+    f.snap.dataset.value = String(n.value);
     f.snap.hidden = false;
   }
 
@@ -226,7 +253,13 @@ export const withForm = (Base) => class extends Base {
     const raw = f.input.value;
     const text = spec.kind === "textarea" || spec.kind === "text" ? raw : raw.trim();
     if (spec.kind === "value") {
-      const r = this._refreshField(f);
+      // A keystroke sends the one field to the engine's session, which
+      // answers with its echo, nearest standard value and warning.
+      const s = this._liveSession();
+      if (s) this._stats.sets++;
+      const r = s
+        ? this._showField(f, s.set(spec.path.join("."), text, spec.series ? this._series[spec.series] : ""))
+        : this._refreshField(f);
       if (!r || !r.ok) {
         this._invalid.set(spec.key, r ? r.message : "");
         this._markStale(true);
@@ -237,6 +270,9 @@ export const withForm = (Base) => class extends Base {
       setPath(this._design, spec.path, r.empty ? undefined : storedValue(text));
     } else {
       setPath(this._design, spec.path, text === "" ? undefined : text);
+      // The stage changes which parts are sent; the rest is rare: the
+      // session is made again from the design at the next compute.
+      this._sessionStale = true;
       if (spec.key === "preset") {
         this._refreshAllFields();
       }

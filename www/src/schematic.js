@@ -414,13 +414,8 @@ export const withDiagram = (Base) => class extends Base {
       if (!f.spec.series) continue;
       const raw = getPath(d, f.spec.path);
       let text = raw === undefined ? "" : String(raw);
-      if (text && api) {
-        try {
-          text = api.format_si(api.parse_value(f.spec.key, text, f.spec.unit), f.spec.unit);
-        } catch (e) {
-          /* keep the text as typed */
-        }
-      }
+      // The engine's echo of the field (kept by the form), else as typed.
+      if (text && this._echo.has(f.spec.key)) text = this._echo.get(f.spec.key);
       values[f.spec.key] = { present: text !== "", text };
     }
     const polarity = this._polarity();

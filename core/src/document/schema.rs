@@ -143,6 +143,18 @@ impl Schema {
     /// The nearest known key for an unknown `key` in the block `prefix`:
     /// the same name in another block, a known alias, the closest name by
     /// edit distance, or a name that holds every word of the key.
+    /// The error for a dotted path the format does not have, with the
+    /// nearest known key.
+    pub(crate) fn unknown(&self, path: &str) -> Error {
+        let (prefix, key) = path.rsplit_once('.').unwrap_or(("", path));
+        Error::new(
+            echo(path),
+            ErrorKind::UnknownKey {
+                suggestion: self.suggest(prefix, key),
+            },
+        )
+    }
+
     fn suggest(&self, prefix: &str, key: &str) -> Option<&'static str> {
         // No known key is longer than about 30 characters; a key of more
         // than 64 is not a typo of one, and comparing it would cost time

@@ -117,6 +117,7 @@ export const withToleranceView = (Base) => class extends Base {
     }
     input.removeAttribute("aria-invalid");
     setPath(this._design, ["tolerances", key], text === "" ? undefined : storedValue(text));
+    this._sessionStale = true;
     if (this._design.tolerances && !Object.keys(this._design.tolerances).length) delete this._design.tolerances;
     this._isExample = false;
     this._recompute();
