@@ -277,9 +277,12 @@ pub fn preset_data(name: JsValue) -> Result<JsValue, JsValue> {
 ///   `"at most"`), in the order of the file's block;
 /// * `ratings`: `{id, label, what, unit}`, the transistor's rating checks;
 /// * `open_resistance`: the resistance that stands for an open circuit
-///   (`stagewright::OPEN_RESISTANCE`: ro with no Early effect).
+///   (`stagewright::OPEN_RESISTANCE`: ro with no Early effect);
+/// * `quantities`: `{key, label, unit}`, the results the tolerance
+///   analysis follows (`stagewright::Quantity`).
 ///
-/// JS: `tables() -> {figures, requirements, ratings, open_resistance}`.
+/// JS: `tables() -> {figures, requirements, ratings, open_resistance,
+/// quantities}`.
 #[wasm_bindgen]
 pub fn tables() -> JsValue {
     let figures = js_sys::Array::new();
@@ -323,6 +326,15 @@ pub fn tables() -> JsValue {
     o.set("requirements", requirements);
     o.set("ratings", ratings);
     o.set("open_resistance", stagewright::OPEN_RESISTANCE);
+    let quantities = js_sys::Array::new();
+    for q in stagewright::Quantity::ALL {
+        let e = Builder::new();
+        e.set("key", q.name());
+        e.set("label", q.figure().label);
+        e.set("unit", q.unit());
+        quantities.push(&e.into());
+    }
+    o.set("quantities", quantities);
     o.into()
 }
 

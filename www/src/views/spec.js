@@ -6,7 +6,7 @@
 import { h } from "../dom.js";
 import { getPath, setPath, storedValue } from "../design.js";
 import { asFieldError, enginePresets } from "../engine.js";
-import { STAGES } from "../schema.js";
+import { GROUPS, STAGES } from "../schema.js";
 
 /** The specification's fields: key in the form, path in the
  * stagewright-spec/1 document, label, default shown, hint; kind "select"
@@ -25,15 +25,9 @@ const SPEC_FIELDS = [
   { key: "rl", path: ["rl"], label: "load resistance", value: "10k", hint: "Ω" },
   { key: "resistor_rating", path: ["resistor_rating"], label: "resistor rating", value: "", hint: "W, default 0.25" },
   { group: "Requirements" },
-  { key: "min_voltage_gain_db", path: ["requirements", "min_voltage_gain_db"], label: "min. voltage gain", value: "20", hint: "dB" },
-  { key: "max_voltage_gain_db", path: ["requirements", "max_voltage_gain_db"], label: "max. voltage gain", value: "", hint: "dB" },
-  { key: "min_input_impedance", path: ["requirements", "min_input_impedance"], label: "min. input impedance", value: "", hint: "Ω" },
-  { key: "max_output_impedance", path: ["requirements", "max_output_impedance"], label: "max. output impedance", value: "", hint: "Ω" },
-  { key: "min_swing", path: ["requirements", "min_swing"], label: "min. swing (peak)", value: "", hint: "V" },
-  { key: "max_f_low", path: ["requirements", "max_f_low"], label: "max. lower corner", value: "20", hint: "Hz" },
-  { key: "min_f_high", path: ["requirements", "min_f_high"], label: "min. upper corner", value: "", hint: "Hz" },
-  { key: "max_supply_current", path: ["requirements", "max_supply_current"], label: "max. supply current", value: "", hint: "A" },
-  { key: "max_junction_temperature", path: ["requirements", "max_junction_temperature"], label: "max. junction temperature", value: "", hint: "°C" },
+  // The requirements: the design file's (the engine's schema), added
+  // when the view is built.
+  { requirements: true },
   { group: "Intents" },
   { key: "bias", label: "bias", kind: "select", options: [["max-swing", "max-swing"], ["ic", "given IC"], ["vce", "given |VCE|"]], value: "max-swing" },
   { key: "bias_value", label: "IC or |VCE|", value: "", hint: "A or V, for a given point" },
@@ -44,6 +38,17 @@ const SPEC_FIELDS = [
   { key: "capacitors", path: ["series", "capacitors"], label: "capacitor series", kind: "select", options: [["E6", "E6"], ["E12", "E12"]], value: "E12" },
   { key: "pins", label: "pinned parts", value: "", hint: "e.g. rc=4k7, RE=470, c_in=1u" },
 ];
+
+/** The specification's fields with the requirements spelled out from the
+ * engine's schema (the same keys, names and units as the design file's
+ * requirements block; the spec's defaults for two of them). */
+function specFields() {
+  const defaults = { min_voltage_gain_db: "20", max_f_low: "20" };
+  const req = GROUPS.find((g) => g.id === "requirements");
+  return SPEC_FIELDS.flatMap((f) => (!f.requirements ? [f] : (req ? req.fields : []).map((r) => ({
+    key: r.key, path: r.path, label: r.desc, value: defaults[r.key] || "", hint: r.unit,
+  }))));
+}
 
 /** Pinned parts as typed ("rc=4k7, RE=470"): {parts} or {error}. Names
  * are read in either case; anything not `name=value` is refused with
@@ -85,7 +90,8 @@ export const withSpecView = (Base) => class extends Base {
     this._specInputs = {};
     const form = h("form", { class: "spec-form", novalidate: true });
     let fs = null;
-    for (const f of SPEC_FIELDS) {
+    this._specFields = specFields();
+    for (const f of this._specFields) {
       if (f.group) {
         fs = h("fieldset", null, h("legend", null, f.group));
         form.append(fs);
@@ -123,7 +129,7 @@ export const withSpecView = (Base) => class extends Base {
       this._specError, this._specOut);
     // The first document: every field's default.
     const spec = { format: "stagewright-spec/1" };
-    for (const f of SPEC_FIELDS) if (f.key) this._specPut(spec, f.key);
+    for (const f of this._specFields) if (f.key) this._specPut(spec, f.key);
     this._specJson.value = JSON.stringify(spec, null, 2);
     return view;
   }
@@ -145,7 +151,7 @@ export const withSpecView = (Base) => class extends Base {
   _specPut(doc, key) {
     const input = this._specInputs[key];
     const value = input.value.trim();
-    const f = SPEC_FIELDS.find((x) => x.key === key);
+    const f = this._specFields.find((x) => x.key === key);
     if (key === "pins") {
       const r = readPins(value);
       if (r.error) return r.error;
@@ -198,7 +204,7 @@ export const withSpecView = (Base) => class extends Base {
   }
 
   _fillSpecForm(doc) {
-    for (const f of SPEC_FIELDS) {
+    for (const f of this._specFields) {
       if (!f.key) continue;
       const input = this._specInputs[f.key];
       let v;

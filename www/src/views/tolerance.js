@@ -21,12 +21,6 @@ function yieldText(y) {
   return y >= 1 ? "100 %" : `${(Math.floor(y * 1e4) / 100).toFixed(2)} %`;
 }
 
-/** The unit of each Monte Carlo result (the gain is in V/V). */
-const MC_UNITS = {
-  ic: "A", vce: "V", voltage_gain: "", input_impedance: "Ω", output_impedance: "Ω", swing: "V",
-  f_low: "Hz", f_high: "Hz", junction_temperature: "°C", supply_current: "A",
-};
-
 /** The view's methods; views/index.js mixes them into the element. */
 export const withToleranceView = (Base) => class extends Base {
   _buildToleranceView() {
@@ -76,6 +70,13 @@ export const withToleranceView = (Base) => class extends Base {
         h("label", { for: id("tol-n") }, "trials N "), this._tolTrials,
         h("label", { for: id("tol-seed") }, " seed "), this._tolSeed, " ", run, " ", this._tolProgress, " ", this._tolCancel),
       this._tolError, this._tolStale, this._tolOut, this._tolHistBox);
+  }
+
+  /** The unit of a Monte Carlo result (the core's Quantity table; the
+   * gain is in V/V). */
+  _quantityUnit(key) {
+    const q = this._tables && this._tables.quantities.find((x) => x.key === key);
+    return q ? q.unit : "";
   }
 
   /** The box's fields from the design's tolerances block. */
@@ -296,7 +297,7 @@ export const withToleranceView = (Base) => class extends Base {
       h("caption", null, "Percentiles over the trials"),
       h("thead", null, h("tr", null, ...["result", "p1", "p50", "p99", "mean"].map((c) => h("th", { scope: "col" }, c)))),
       h("tbody", null, ...s.distributions.map((d) => {
-        const unit = MC_UNITS[d.quantity] || "";
+        const unit = this._quantityUnit(d.quantity);
         return h("tr", null, h("th", { scope: "row" }, d.quantity.replace(/_db$/, " (dB)").replace(/_/g, " ")),
           h("td", null, f(d.p1, unit)), h("td", null, f(d.p50, unit)), h("td", null, f(d.p99, unit)), h("td", null, f(d.mean, unit)));
       })));
@@ -320,7 +321,7 @@ export const withToleranceView = (Base) => class extends Base {
     const s = this._tolSummary;
     const d = s && s.distributions.find((x) => x.quantity === this._tolHistPick.value);
     if (!api || !d) return;
-    const unit = MC_UNITS[d.quantity] || "";
+    const unit = this._quantityUnit(d.quantity);
     const bins = d.histogram.counts.length;
     const width = (d.histogram.to - d.histogram.from) / bins;
     const x = [];
