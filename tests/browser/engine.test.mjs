@@ -133,6 +133,26 @@ describe("the engine in the page", () => {
     assert.deepEqual(browser.errors, []);
   });
 
+  test("parts given as bare numbers are written as engineers read them, with the same numbers", async () => {
+    const file = path.join(root, "examples", "transducer-gain-stage.json");
+    const design = JSON.parse(readFileSync(file, "utf8"));
+    design.parts.rc = 3900;
+    design.parts.c_out = 0.0000047;
+    design.parts.r1 = 150000;
+    const numeric = path.join(tmp, "numeric.json");
+    writeFileSync(numeric, JSON.stringify(design));
+    const got = await page.evaluate((t) => {
+      const el = document.querySelector("stagewright-calc");
+      el.design = t;
+      const input = (k) => el.shadowRoot.querySelector(`.field[data-key='${k}'] input`).value;
+      return { report: el.report, parts: el.design.parts, shown: [input("rc"), input("c_out"), input("r1")] };
+    }, JSON.stringify(design));
+    assert.deepEqual(got.shown, ["3.9k", "4.7u", "150k"], "the fields, after a load");
+    assert.deepEqual([got.parts.rc, got.parts.c_out, got.parts.r1], ["3.9k", "4.7u", "150k"], "the design saved and shared");
+    // Exactly the same numbers: the report is the numeric file's.
+    assert.deepEqual(jsonDifferences(got.report, cliReport(numeric), 0), [], "bit for bit");
+  });
+
   test("an invalid entry shows its message in place and the last good results stay", async () => {
     const good = await page.evaluate(() => document.querySelector("stagewright-calc").report);
     const shownBefore = await page.evaluate(() =>

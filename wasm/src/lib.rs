@@ -36,7 +36,7 @@ pub use plot::{plot_frequency, plot_xy};
 pub use session::Session;
 pub use spec::design_from_spec;
 pub use tolerance::Tolerance;
-pub use values::{format_si, parse_value, series_lookup};
+pub use values::{format_exact, format_si, parse_value, series_lookup};
 
 /// The allocator: a small free-list allocator in place of the standard
 /// library's dlmalloc, about 3.5 KB less in the compressed page, which

@@ -49,3 +49,12 @@ pub fn series_lookup(series: JsValue, value: f64) -> Result<JsValue, JsValue> {
         None => Ok(JsValue::NULL),
     }
 }
+
+/// Formats `value` with exactly the digits that read back to the same
+/// number (`stagewright::format_exact`): `4.7 kΩ`, `3.3 µF`.
+///
+/// JS: `format_exact(value: number, unit: string): string`.
+#[wasm_bindgen]
+pub fn format_exact(value: f64, unit: JsValue) -> String {
+    stagewright::format_exact(value, &unit.as_string().unwrap_or_default())
+}

@@ -19,6 +19,7 @@
 import { designText, encodeDesign } from "./codec.js";
 import { clone, getPath, ordered, own } from "./design.js";
 import { h, sv } from "./dom.js";
+import { shortText } from "./text.js";
 import { SWEEP_PER_DECADE, asFieldError, enginePresets, hasAnalysis, loadEngine, mark, runAnalysis } from "./engine.js";
 import { withForm } from "./form.js";
 import { upgradePlaceholders, watchPlaceholders } from "./placeholders.js";
@@ -364,6 +365,7 @@ export class StagewrightCalc extends withShare(withPlots(withResults(withDiagram
   _loadDesign(design, isExample) {
     const d = clone(design);
     d.format = FORMAT;
+    this._engineeringParts(d);
     if (schemaReady() && !own(STAGE_PARTS, d.stage)) d.stage = "common-emitter";
     this._design = d;
     this._sessionStale = true;
@@ -376,6 +378,20 @@ export class StagewrightCalc extends withShare(withPlots(withResults(withDiagram
     this._fillForm();
     this._onDesignLoaded();
     this._recompute();
+  }
+
+  /** A part given as a bare number (`0.0000047`, `120000`) is written the
+   * way engineers read it, with exactly the digits that read back to the
+   * same number (`4.7u`, `120k`: the engine's format_exact, the unit
+   * beside the field), so the form, the file saved and Share show it so. */
+  _engineeringParts(d) {
+    const api = this._api;
+    if (!api || typeof api.format_exact !== "function" || !d.parts || typeof d.parts !== "object") return;
+    for (const [k, v] of Object.entries(d.parts)) {
+      const spec = FIELD_BY_KEY.get(k);
+      if (!spec || !spec.series || typeof v !== "number" || !Number.isFinite(v) || v <= 0) continue;
+      d.parts[k] = shortText(api.format_exact(v, spec.unit), spec.unit);
+    }
   }
 
   /** Hooks for the views: a design was loaded (its fields to fill), the

@@ -7,6 +7,7 @@
 import { getPath, own, setPath, storedValue } from "./design.js";
 import { h } from "./dom.js";
 import { asFieldError, presetData } from "./engine.js";
+import { shortText } from "./text.js";
 import { SERIES_CHOICES, STAGES, STAGE_PARTS, schemaReady } from "./schema.js";
 
 /** The form's methods, mixed into the element (element.js). */
@@ -286,11 +287,11 @@ export const withForm = (Base) => class extends Base {
   _snap(f) {
     const v = Number(f.snap.dataset.value);
     if (!Number.isFinite(v) || !this._api) return;
-    // "4.7 kΩ" is written "4.7k": the unit stands beside the field.
+    // "4.7 kΩ" is written "4.7k": the unit stands beside the field; the
+    // digits are exactly those that read back to the standard value.
     const unit = f.spec.unit;
-    let text = this._api.format_si(v, unit);
-    if (unit && text.endsWith(unit)) text = text.slice(0, -unit.length);
-    text = text.replace(/\s+/g, "").replace(/µ/g, "u");
+    const api = this._api;
+    let text = shortText(typeof api.format_exact === "function" ? api.format_exact(v, unit) : api.format_si(v, unit), unit);
     try {
       const back = this._api.parse_value(f.spec.key, text, f.spec.unit);
       if (Math.abs(back - v) > 1e-9 * Math.abs(v)) text = String(v);
