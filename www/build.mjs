@@ -72,22 +72,8 @@ function forInlineScript(js) {
   return js.replace(/<\/(script)/gi, "<\\/$1").replace(/<!--/g, "<\\!--");
 }
 
-/** The one patch of the generated glue: its `debugString` (a 57-line
- * printer of any JavaScript value, reached only when Rust formats a
- * JsValue with `{:?}` in a message nobody sees) becomes `String(val)`,
- * 0.4 KB of the page's gzip budget; wasm-bindgen has no option for it.
- * Glue without that function is used as it is. */
-function plainDebugString(js) {
-  const start = js.indexOf("function debugString(val) {");
-  if (start < 0) return js;
-  const indent = /\n([ \t]*)$/.exec(js.slice(0, start))[1];
-  const end = js.indexOf(`\n${indent}}`, start);
-  if (end < 0) throw new Error("unexpected wasm-bindgen glue: debugString has no end");
-  return `${js.slice(0, start)}function debugString(val) { return String(val); }${js.slice(end + indent.length + 2)}`;
-}
-
 const version = workspaceVersion();
-const glue = plainDebugString(read(path.join(bindgenDir, "stagewright_wasm.js")));
+const glue = read(path.join(bindgenDir, "stagewright_wasm.js"));
 if (!/^let wasm_bindgen\b/m.test(glue)) {
   throw new Error("unexpected wasm-bindgen glue: expected the no-modules target (let wasm_bindgen = …)");
 }

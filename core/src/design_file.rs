@@ -457,65 +457,17 @@ impl DesignDocument {
                 "ambient" => set_to(&mut self.ambient, typed),
                 _ => false,
             },
-            Some(("transistor", key)) => {
-                let b = self.transistor.get_or_insert_with(Default::default);
+            Some(("transistor", key)) => edit(&mut self.transistor, |b| {
                 let words = words.map(|w| String::from(w.trim()));
-                let ok = match key {
+                match key {
                     "preset" => set_to(&mut b.preset, words),
                     "polarity" => set_to(&mut b.polarity, words),
                     _ => b.set(key, typed),
-                };
-                if self
-                    .transistor
-                    .as_ref()
-                    .is_some_and(|b| *b == TransistorDocument::default())
-                {
-                    self.transistor = None;
                 }
-                ok
-            }
-            Some(("parts", key)) => {
-                let ok = self
-                    .parts
-                    .get_or_insert_with(Default::default)
-                    .set(key, typed);
-                if self
-                    .parts
-                    .as_ref()
-                    .is_some_and(|b| *b == PartsDocument::default())
-                {
-                    self.parts = None;
-                }
-                ok
-            }
-            Some(("requirements", key)) => {
-                let ok = self
-                    .requirements
-                    .get_or_insert_with(Default::default)
-                    .set(key, typed);
-                if self
-                    .requirements
-                    .as_ref()
-                    .is_some_and(|b| *b == RequirementsDocument::default())
-                {
-                    self.requirements = None;
-                }
-                ok
-            }
-            Some(("tolerances", key)) => {
-                let ok = self
-                    .tolerances
-                    .get_or_insert_with(Default::default)
-                    .set(key, typed);
-                if self
-                    .tolerances
-                    .as_ref()
-                    .is_some_and(|b| *b == TolerancesDocument::default())
-                {
-                    self.tolerances = None;
-                }
-                ok
-            }
+            }),
+            Some(("parts", key)) => edit(&mut self.parts, |b| b.set(key, typed)),
+            Some(("requirements", key)) => edit(&mut self.requirements, |b| b.set(key, typed)),
+            Some(("tolerances", key)) => edit(&mut self.tolerances, |b| b.set(key, typed)),
             _ => false,
         };
         if ok {
@@ -524,6 +476,16 @@ impl DesignDocument {
             Err(DESIGN_SCHEMA.unknown(path))
         }
     }
+}
+
+/// Edits the block in `slot` (made if missing) with `f`, then drops the
+/// block again if it is left empty; returns what `f` returns.
+fn edit<B: Default + PartialEq>(slot: &mut Option<B>, f: impl FnOnce(&mut B) -> bool) -> bool {
+    let ok = f(slot.get_or_insert_with(B::default));
+    if slot.as_ref().is_some_and(|b| *b == B::default()) {
+        *slot = None;
+    }
+    ok
 }
 
 /// Sets `slot`; always true (the key exists).

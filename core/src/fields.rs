@@ -116,6 +116,17 @@ const fn part(key: &'static str, label: &'static str, family: Family) -> Field {
     }
 }
 
+const fn words(key: &'static str, label: &'static str, kind: FieldKind) -> Field {
+    Field {
+        key,
+        label,
+        unit: "",
+        kind,
+        family: None,
+        group: Group::Stage,
+    }
+}
+
 const fn choice(key: &'static str, label: &'static str, group: Group) -> Field {
     Field {
         key,
@@ -133,22 +144,16 @@ use Group::{Parts, Stage, Tolerances, Transistor};
 /// Every field of the design file but the requirements, in the order of
 /// the file and of the form.
 pub const FIELDS: &[Field] = &[
-    Field {
-        key: "title",
-        label: "title of this design",
-        unit: "",
-        kind: FieldKind::Text(crate::document::MAX_TITLE),
-        family: None,
-        group: Stage,
-    },
-    Field {
-        key: "notes",
-        label: "notes for reviewers",
-        unit: "",
-        kind: FieldKind::Notes(crate::document::MAX_NOTES),
-        family: None,
-        group: Stage,
-    },
+    words(
+        "title",
+        "title of this design",
+        FieldKind::Text(crate::document::MAX_TITLE),
+    ),
+    words(
+        "notes",
+        "notes for reviewers",
+        FieldKind::Notes(crate::document::MAX_NOTES),
+    ),
     choice("stage", "configuration", Stage),
     v("supply", "supply voltage", "V", Stage),
     v("ambient", "ambient temperature", "°C", Stage),

@@ -648,10 +648,9 @@ fn presets_all_resolve_and_validate() {
     assert!(e.to_string().contains("general-purpose-npn"), "{e}");
 }
 
-#[test]
-fn names_every_figure_is_a_number_of_the_report() {
-    // The one table of figures names keys of the report's JSON: each is a
-    // number there (for the example stage), and no two figures share a key.
+/// The example stage as a design with the general-purpose preset, and
+/// its analysis.
+fn example_design() -> (Design, stagewright::Analysis) {
     let d = Design {
         title: String::new(),
         notes: String::new(),
@@ -661,6 +660,14 @@ fn names_every_figure_is_a_number_of_the_report() {
         tolerances: None,
     };
     let a = d.analyze().expect("analyses");
+    (d, a)
+}
+
+#[test]
+fn names_every_figure_is_a_number_of_the_report() {
+    // The one table of figures names keys of the report's JSON: each is a
+    // number there (for the example stage), and no two figures share a key.
+    let (d, a) = example_design();
     let v: serde_json::Value =
         serde_json::from_str(&Report::new(&d, &a).to_json_string()).expect("JSON");
     for f in FIGURES {
@@ -680,15 +687,7 @@ fn ratings_table_names_every_rating_check() {
     // The one table of ratings names the report's rating checks: the same
     // ids in the same order, each check in the table's unit, the resistor
     // checks after them.
-    let d = Design {
-        title: String::new(),
-        notes: String::new(),
-        preset: Some("general-purpose-npn".into()),
-        stage: example(),
-        requirements: Requirements::default(),
-        tolerances: None,
-    };
-    let a = d.analyze().expect("analyses");
+    let (_, a) = example_design();
     let ids: Vec<&str> = a.ratings.iter().map(|c| c.id.as_str()).collect();
     let table: Vec<&str> = RATINGS.iter().map(|r| r.id).collect();
     assert_eq!(&ids[..RATINGS.len()], &table[..]);
