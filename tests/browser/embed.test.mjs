@@ -114,6 +114,12 @@ describe("embedding dist/stagewright.js", () => {
           '<stagewright-calc id="light" theme="light"></stagewright-calc>' +
           `<div id="ph" data-stagewright data-theme="dark" data-design="${b64url(design("Dark placeholder"))}"></div></body></html>`,
       },
+      "/views.html": {
+        html: page('<script src="/stagewright.js"></script>',
+          `<div><stagewright-calc id="two" views="calculator tolerances" view="tolerances"><script type="application/json">${JSON.stringify(design("Two views"))}</script></stagewright-calc></div>` +
+          '<div><stagewright-calc id="one" views="requirements"></stagewright-calc></div>' +
+          `<div id="ph2" data-stagewright data-views="tolerances calculator" data-design="${b64url(design("Placeholder views"))}"></div>`),
+      },
       "/late.html": {
         html: page('<script src="/stagewright.js"></script>', '<div id="slot"></div>'),
       },
@@ -321,6 +327,25 @@ describe("embedding dist/stagewright.js", () => {
       return [a, title()];
     });
     assert.equal(sizes[0], sizes[1], "the host's root font size does not scale the element");
+    assert.deepEqual(browser.errors, []);
+    await p.close();
+  });
+
+  test("the views attribute chooses the tabs of an embed, view the one shown first", async () => {
+    const p = await browser.context.newPage();
+    await p.goto(`${ORIGIN}/views.html`);
+    await understood(p, "#two");
+    await p.waitForFunction(() => document.querySelector("#ph2 stagewright-calc") && document.querySelector("#one").shadowRoot);
+    await p.waitForFunction(() => document.querySelector("#two").view === "tolerances" && document.querySelector("#one").view === "requirements");
+    const seen = await p.evaluate(() => ["#two", "#one", "#ph2 stagewright-calc"].map((sel) => {
+      const el = document.querySelector(sel);
+      const tabs = Array.from(el.shadowRoot.querySelectorAll("[role=tab]"), (t) => t.getAttribute("data-view"));
+      return { tabs, barHidden: el.shadowRoot.querySelector("[role=tablist]").hidden, view: el.view };
+    }));
+    // Tabs in the element's own order, whatever order the attribute names them in.
+    assert.deepEqual(seen[0], { tabs: ["calculator", "tolerances"], barHidden: false, view: "tolerances" });
+    assert.deepEqual(seen[1], { tabs: ["requirements"], barHidden: true, view: "requirements" }, "one view: no tab bar");
+    assert.deepEqual(seen[2], { tabs: ["calculator", "tolerances"], barHidden: false, view: "calculator" }, "data-views on a placeholder");
     assert.deepEqual(browser.errors, []);
     await p.close();
   });
