@@ -89,13 +89,18 @@ export const withPlots = (Base) => class extends Base {
   /** Draws the plots in the next frame; with `afterPaint`, once that
    * frame has been painted (the first results show before the plots). */
   _schedulePlots(afterPaint) {
+    // A draw already asked for (a resize, say) waits for the paint too
+    // when this call asks it to.
+    if (afterPaint) this._plotAfterPaint = true;
     if (this._plotFrame) return;
     this._plotFrame = requestAnimationFrame(() => {
       const draw = () => {
         this._plotFrame = 0;
         this._drawPlots();
       };
-      if (afterPaint) setTimeout(draw, 0);
+      const after = this._plotAfterPaint;
+      this._plotAfterPaint = false;
+      if (after) setTimeout(draw, 0);
       else draw();
     });
   }
