@@ -240,6 +240,105 @@ pub const FIELDS: &[Field] = &[
     v("tolerances.ambient_max", "ambient to", "°C", Tolerances),
 ];
 
+/// The fields of the specification file (`stagewright-spec/1`) that its
+/// form shows, with the default each takes when left out (as the form
+/// writes it; empty when the file must give it). The requirements are the
+/// [`REQUIREMENTS`](crate::REQUIREMENTS) table's; the `bias` and the
+/// pinned `parts` are composite entries the form builds itself. A unit
+/// test holds every key here to the specification reader's keys.
+pub const SPEC_FIELDS: &[SpecField] = &[
+    SpecField::new(
+        "title",
+        "title",
+        "",
+        FieldKind::Text(crate::document::MAX_TITLE),
+        "",
+    ),
+    SpecField::new("stage", "stage", "", FieldKind::Choice, ""),
+    SpecField::new("transistor.preset", "transistor", "", FieldKind::Choice, ""),
+    SpecField::new("transistor.polarity", "polarity", "", FieldKind::Choice, ""),
+    SpecField::new("supply", "supply", "V", FieldKind::Value, ""),
+    SpecField::new("ambient", "ambient", "°C", FieldKind::Value, "25"),
+    SpecField::new("rs", "source resistance", "Ω", FieldKind::Value, ""),
+    SpecField::new("rl", "load resistance", "Ω", FieldKind::Value, ""),
+    SpecField::new(
+        "resistor_rating",
+        "resistor rating",
+        "W",
+        FieldKind::Value,
+        "0.25",
+    ),
+    SpecField::new(
+        "saturation_reserve",
+        "saturation reserve",
+        "V",
+        FieldKind::Value,
+        "0.5",
+    ),
+    SpecField::new(
+        "stiffness",
+        "stiffness k, RTH = k·hFE(min)·RE",
+        "",
+        FieldKind::Value,
+        "0.1",
+    ),
+    SpecField::new(
+        "emitter_fraction",
+        "emitter fraction, the share of the supply across RE",
+        "",
+        FieldKind::Value,
+        "0.1",
+    ),
+    SpecField::new(
+        "series.resistors",
+        "resistor series",
+        "",
+        FieldKind::Choice,
+        "E24",
+    ),
+    SpecField::new(
+        "series.capacitors",
+        "capacitor series",
+        "",
+        FieldKind::Choice,
+        "E12",
+    ),
+];
+
+/// One field of the specification file, for its form.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub struct SpecField {
+    /// Where it sits in the file, as a dotted path: `rs`, `series.resistors`.
+    pub key: &'static str,
+    /// What it is, in words.
+    pub label: &'static str,
+    /// The unit its value is read in (empty for a ratio or a choice).
+    pub unit: &'static str,
+    /// The kind of entry.
+    pub kind: FieldKind,
+    /// The value it takes when the file leaves it out, as the form writes
+    /// it (empty when the file must give it, or has no default).
+    pub default: &'static str,
+}
+
+impl SpecField {
+    const fn new(
+        key: &'static str,
+        label: &'static str,
+        unit: &'static str,
+        kind: FieldKind,
+        default: &'static str,
+    ) -> SpecField {
+        SpecField {
+            key,
+            label,
+            unit,
+            kind,
+            default,
+        }
+    }
+}
+
 /// The field at `key` (a dotted path), if the table has it.
 pub fn field(key: &str) -> Option<&'static Field> {
     FIELDS.iter().find(|f| f.key == key)
@@ -287,6 +386,50 @@ mod tests {
             let standard = f.group == Group::Parts && (f.unit == "Ω" || f.unit == "F");
             assert_eq!(f.family.is_some(), standard, "{}", f.key);
         }
+    }
+
+    #[test]
+    fn spec_fields_are_the_spec_files_keys_with_the_cores_defaults() {
+        use crate::synthesis::{
+            Series, DEFAULT_EMITTER_FRACTION, DEFAULT_SATURATION_RESERVE, DEFAULT_STIFFNESS,
+        };
+        let reader: alloc::vec::Vec<&str> = crate::spec_file::SPEC_SCHEMA
+            .keys
+            .iter()
+            .flat_map(|k| k.iter().copied())
+            .collect();
+        for f in SPEC_FIELDS {
+            assert!(
+                reader.contains(&f.key),
+                "{} is a key of the specification",
+                f.key
+            );
+        }
+        // Each default is the core's own, as the form writes it.
+        let default = |key: &str| {
+            SPEC_FIELDS
+                .iter()
+                .find(|f| f.key == key)
+                .expect(key)
+                .default
+        };
+        let num = |key: &str| default(key).parse::<f64>().expect(key);
+        assert_eq!(num("saturation_reserve"), DEFAULT_SATURATION_RESERVE);
+        assert_eq!(num("stiffness"), DEFAULT_STIFFNESS);
+        assert_eq!(num("emitter_fraction"), DEFAULT_EMITTER_FRACTION);
+        assert_eq!(
+            num("resistor_rating"),
+            crate::stage::DEFAULT_RESISTOR_RATING
+        );
+        assert_eq!(num("ambient"), crate::document::DEFAULT_AMBIENT_CELSIUS);
+        assert_eq!(
+            default("series.resistors"),
+            Series::default().resistors.name()
+        );
+        assert_eq!(
+            default("series.capacitors"),
+            Series::default().capacitors.name()
+        );
     }
 
     #[test]

@@ -129,7 +129,7 @@ pub use document::{
 pub use error::{Error, ErrorKind, Result, MAX_ECHO};
 pub use eseries::{ESeries, SeriesLookup};
 #[cfg(feature = "serde")]
-pub use fields::{field, Family, Field, FieldKind, Group, FIELDS};
+pub use fields::{field, Family, Field, FieldKind, Group, SpecField, FIELDS, SPEC_FIELDS};
 pub use figures::{Figure, Quantity, FIGURES};
 pub use format::{format_exact, format_si, format_value};
 pub use hybrid_pi::{SmallSignal, OPEN_RESISTANCE};

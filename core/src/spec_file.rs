@@ -243,7 +243,7 @@ const ALIASES: &[(&str, &str)] = &[
 ];
 
 /// The keys of the specification file, version 1.
-const SPEC_SCHEMA: Schema = Schema {
+pub(crate) const SPEC_SCHEMA: Schema = Schema {
     keys: &[
         TOP_KEYS,
         TransistorDocument::KEYS,

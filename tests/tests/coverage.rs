@@ -492,6 +492,20 @@ const COVERAGE: &[(&str, Covered)] = &[
         ),
     ),
     (
+        "SpecField",
+        Unit(
+            "fields",
+            "spec_fields_are_the_spec_files_keys_with_the_cores_defaults",
+        ),
+    ),
+    (
+        "SPEC_FIELDS",
+        Unit(
+            "fields",
+            "spec_fields_are_the_spec_files_keys_with_the_cores_defaults",
+        ),
+    ),
+    (
         "FIELDS",
         Unit(
             "fields",

@@ -376,7 +376,8 @@ fn default_text(key: &str) -> Option<String> {
 /// each uses, so that the page keeps no list of fields of its own.
 ///
 /// JS: `fields() -> {format, stages: [[name, label]], stage_parts: {name:
-/// [part]}, groups: [{id, legend, fields: [{path, key, unit, desc, kind,
+/// [part]}, spec: [field of the specification form, with its default],
+/// groups: [{id, legend, fields: [{path, key, unit, desc, kind,
 /// maxlength?, series?, options?, default?}]}]}`; `kind` is "value", "text",
 /// "textarea" or "select"; `series` "R" or "C" for a standard part;
 /// `options` [[value, words]] for a choice (null for the preset, whose
@@ -486,8 +487,44 @@ pub fn fields() -> JsValue {
             add_group("requirements", "Requirements", list);
         }
     }
+    // The specification form's fields (`stagewright::SPEC_FIELDS`).
+    let spec = js_sys::Array::new();
+    for f in stagewright::SPEC_FIELDS {
+        let kind = match f.kind {
+            FieldKind::Value => "value",
+            FieldKind::Text(_) | FieldKind::Notes(_) => "text",
+            FieldKind::Choice => "select",
+        };
+        let o = one(f.key, f.label, f.unit, kind);
+        o.set("default", f.default);
+        if f.kind == FieldKind::Choice {
+            let options = js_sys::Array::new();
+            match f.key {
+                "stage" => {
+                    for s in StageKind::ALL {
+                        options.push(&pair(s.name(), s.label()));
+                    }
+                }
+                "transistor.polarity" => {
+                    options.push(&pair("", "from the class"));
+                    for (p, words) in [(Polarity::Npn, "NPN"), (Polarity::Pnp, "PNP")] {
+                        options.push(&pair(p.name(), words));
+                    }
+                }
+                "series.resistors" | "series.capacitors" => {
+                    for e in stagewright::ESeries::ALL {
+                        options.push(&pair(e.name(), e.name()));
+                    }
+                }
+                _ => {}
+            }
+            o.set("options", options);
+        }
+        spec.push(&o.into());
+    }
     let o = Builder::new();
     o.set("format", stagewright::DESIGN_FORMAT);
+    o.set("spec", spec);
     o.set("stages", stages);
     o.set("stage_parts", stage_parts);
     o.set("groups", groups);

@@ -17,6 +17,8 @@ export let STAGE_PARTS = {};
 export let GROUPS = [];
 /** Each field by its key ("rc", "supply", "resistor_tolerance"). */
 export let FIELD_BY_KEY = new Map();
+/** The specification form's fields, with their defaults. */
+export let SPEC = [];
 
 /** Whether the engine's schema has been read. */
 export function schemaReady() {
@@ -29,6 +31,7 @@ export function setSchema(schema) {
   STAGES = schema.stages;
   STAGE_PARTS = schema.stage_parts;
   GROUPS = schema.groups;
+  SPEC = schema.spec || [];
   FIELD_BY_KEY = new Map(GROUPS.flatMap((g) => g.fields).map((f) => [f.key, f]));
 }
 

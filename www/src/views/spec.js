@@ -6,48 +6,44 @@
 import { h } from "../dom.js";
 import { getPath, setPath, storedValue } from "../design.js";
 import { asFieldError, enginePresets } from "../engine.js";
-import { GROUPS, STAGES } from "../schema.js";
+import { GROUPS, SPEC } from "../schema.js";
 
-/** The specification's fields: key in the form, path in the
- * stagewright-spec/1 document, label, default shown, hint; kind "select"
- * with its options. The JSON box is the source of truth: a form edit
- * writes only its own key into the document, so keys the form has no
- * field for (typed into the box) survive every edit. */
-const SPEC_FIELDS = [
-  { group: "Stage" },
-  { key: "title", path: ["title"], label: "title", value: "", hint: "names the design it makes" },
-  { key: "stage", path: ["stage"], label: "stage", kind: "select", options: null, value: "common-emitter" },
-  { key: "preset", path: ["transistor", "preset"], label: "transistor", kind: "select", options: [["general-purpose-npn", "general-purpose-npn"]], value: "general-purpose-npn" },
-  { key: "polarity", path: ["transistor", "polarity"], label: "polarity", kind: "select", options: [["", "from the class"], ["npn", "NPN"], ["pnp", "PNP"]], value: "" },
-  { key: "supply", path: ["supply"], label: "supply", value: "12", hint: "V" },
-  { key: "ambient", path: ["ambient"], label: "ambient", value: "", hint: "°C, default 25" },
-  { key: "rs", path: ["rs"], label: "source resistance", value: "600", hint: "Ω" },
-  { key: "rl", path: ["rl"], label: "load resistance", value: "10k", hint: "Ω" },
-  { key: "resistor_rating", path: ["resistor_rating"], label: "resistor rating", value: "", hint: "W, default 0.25" },
-  { group: "Requirements" },
-  // The requirements: the design file's (the engine's schema), added
-  // when the view is built.
-  { requirements: true },
-  { group: "Intents" },
-  { key: "bias", label: "bias", kind: "select", options: [["max-swing", "max-swing"], ["ic", "given IC"], ["vce", "given |VCE|"]], value: "max-swing" },
-  { key: "bias_value", label: "IC or |VCE|", value: "", hint: "A or V, for a given point" },
-  { key: "saturation_reserve", path: ["saturation_reserve"], label: "saturation reserve", value: "", hint: "V, default 0.5" },
-  { key: "stiffness", path: ["stiffness"], label: "stiffness k", value: "", hint: "RTH = k·hFE(min)·RE, default 0.1" },
-  { key: "emitter_fraction", path: ["emitter_fraction"], label: "emitter fraction", value: "", hint: "share of the supply across RE, default 0.1" },
-  { key: "resistors", path: ["series", "resistors"], label: "resistor series", kind: "select", options: [["E12", "E12"], ["E24", "E24"], ["E96", "E96"]], value: "E24" },
-  { key: "capacitors", path: ["series", "capacitors"], label: "capacitor series", kind: "select", options: [["E6", "E6"], ["E12", "E12"]], value: "E12" },
-  { key: "pins", label: "pinned parts", value: "", hint: "e.g. rc=4k7, RE=470, c_in=1u" },
-];
+/** The form's starting specification, an invented bench scenario. */
+const START = {
+  stage: "common-emitter", preset: "general-purpose-npn", supply: "12", rs: "600", rl: "10k",
+  min_voltage_gain_db: "20", max_f_low: "20",
+};
 
-/** The specification's fields with the requirements spelled out from the
- * engine's schema (the same keys, names and units as the design file's
- * requirements block; the spec's defaults for two of them). */
+/** The specification's fields, from the core's tables (the engine's
+ * schema: its SPEC_FIELDS, and the requirements of the design file), in
+ * three groups, with two entries the form composes itself: the bias (a
+ * rule, or a given IC or |VCE|) and the pinned parts. Each: key in the
+ * form, path in the document, label, starting value, hint (unit and
+ * default); kind "select" with its options. The JSON box is the source
+ * of truth: a form edit writes only its own key into the document, so
+ * keys the form has no field for (typed into the box) survive every edit. */
 function specFields() {
-  const defaults = { min_voltage_gain_db: "20", max_f_low: "20" };
+  const hint = (f) => [f.unit, f.default ? `default ${f.default}` : ""].filter(Boolean).join(", ");
+  const from = (f) => ({
+    key: f.key, path: f.path, label: f.desc, kind: f.kind === "select" ? "select" : undefined,
+    options: f.options, value: START[f.key] || "", hint: f.kind === "select" ? "" : hint(f),
+  });
+  const spec = new Map(SPEC.map((f) => [f.path.join("."), f]));
+  const pick = (...keys) => keys.filter((k) => spec.has(k)).map((k) => from(spec.get(k)));
   const req = GROUPS.find((g) => g.id === "requirements");
-  return SPEC_FIELDS.flatMap((f) => (!f.requirements ? [f] : (req ? req.fields : []).map((r) => ({
-    key: r.key, path: r.path, label: r.desc, value: defaults[r.key] || "", hint: r.unit,
-  }))));
+  const series = pick("series.resistors", "series.capacitors").map((f) => Object.assign(f, { value: f.value || spec.get(f.path.join(".")).default }));
+  return [
+    { group: "Stage" },
+    ...pick("title", "stage", "transistor.preset", "transistor.polarity", "supply", "ambient", "rs", "rl", "resistor_rating"),
+    { group: "Requirements" },
+    ...(req ? req.fields : []).map((r) => ({ key: r.key, path: r.path, label: r.desc, value: START[r.key] || "", hint: r.unit })),
+    { group: "Intents" },
+    { key: "bias", label: "bias", kind: "select", options: [["max-swing", "max-swing"], ["ic", "given IC"], ["vce", "given |VCE|"]], value: "max-swing" },
+    { key: "bias_value", label: "IC or |VCE|", value: "", hint: "A or V, for a given point" },
+    ...pick("saturation_reserve", "stiffness", "emitter_fraction"),
+    ...series,
+    { key: "pins", label: "pinned parts", value: "", hint: "e.g. rc=4k7, RE=470, c_in=1u" },
+  ];
 }
 
 /** Pinned parts as typed ("rc=4k7, RE=470"): {parts} or {error}. Names
@@ -99,8 +95,13 @@ export const withSpecView = (Base) => class extends Base {
       }
       const fid = id("spec-" + f.key);
       const input = f.kind === "select"
-        ? h("select", { id: fid, "data-key": f.key }, ...(f.key === "stage" ? STAGES : f.options).map(([v, t]) => h("option", { value: v }, t)))
+        ? h("select", { id: fid, "data-key": f.key }, ...(f.options || []).map(([v, t]) => h("option", { value: v }, t)))
         : h("input", { type: "text", id: fid, "data-key": f.key, value: f.value || "", autocomplete: "off", spellcheck: "false" });
+      // A starting choice the menu does not list yet (the presets come
+      // from the engine a moment later) is offered as it is.
+      if (f.kind === "select" && f.value && !Array.from(input.options).some((o) => o.value === f.value)) {
+        input.append(h("option", { value: f.value }, f.value));
+      }
       input.value = f.value;
       this._specInputs[f.key] = input;
       fs.append(h("div", { class: "spec-field" }, h("label", { for: fid }, f.label), input, f.hint ? h("span", { class: "hint" }, f.hint) : null));
