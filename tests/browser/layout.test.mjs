@@ -54,7 +54,10 @@ async function everyView(page, check) {
 /** What sticks out sideways: the page's own scroll width; every box in
  * the shadow root whose left or right edge passes the frame's, unless an
  * ancestor clips or scrolls it (overflow-x other than visible); every
- * scrolling box that needs sideways scrolling; the tab rows. */
+ * scrolling box that needs sideways scrolling, but for the circuit
+ * diagram's own box, which scrolls on purpose so that its labels keep a
+ * readable size; the rendered size of the diagram's smallest labels (the
+ * part values), when the diagram shows; the tab rows. */
 function sideways(page) {
   return page.evaluate(() => {
     const el = document.querySelector("stagewright-calc");
@@ -77,19 +80,22 @@ function sideways(page) {
       const cs = getComputedStyle(n);
       // Form controls scroll their own text; that is not the layout's.
       const control = /^(INPUT|TEXTAREA|SELECT)$/.test(n.tagName);
-      if (!control && /auto|scroll/.test(cs.overflowX) && n.scrollWidth > n.clientWidth + 1) {
+      if (!control && !n.classList.contains("diagram") && /auto|scroll/.test(cs.overflowX) && n.scrollWidth > n.clientWidth + 1) {
         scrolling.push(`${name(n)} ${n.scrollWidth} px of content in ${n.clientWidth} px`);
       }
       if ((r.right > frame.right + 0.5 || r.left < frame.left - 0.5) && !contained(n)) {
         outside.push(`${name(n)} ${r.left.toFixed(1)}..${r.right.toFixed(1)}`);
       }
     }
+    const pval = root.querySelector(".diagram .pval");
+    const diagramLabel = pval && pval.checkVisibility() ? pval.getBoundingClientRect().height : null;
     const tabTops = new Set(Array.from(root.querySelectorAll("[role=tab]"), (t) => Math.round(t.getBoundingClientRect().top)));
     return {
       scrollWidth: document.documentElement.scrollWidth,
       frame: [frame.left, frame.right],
       outside: outside.slice(0, 12),
       scrolling,
+      diagramLabel,
       tabRows: tabTops.size,
     };
   });
@@ -114,6 +120,9 @@ describe("layout", () => {
           if (s.frame[1] > 390) problems.push(`${where}: the element's frame ends at ${s.frame[1]} px, past the screen`);
           for (const o of s.outside) problems.push(`${where}: sticks out of the element's frame (cut off or over the page): ${o}`);
           for (const o of s.scrolling) problems.push(`${where}: needs sideways scrolling to be read: ${o}`);
+          // A label's box is about 1.2 times its font size: 10.5 px is a
+          // font of about 9 px, the least that reads on a phone.
+          if (s.diagramLabel !== null && s.diagramLabel < 10.5) problems.push(`${where}: the diagram's part values are drawn ${s.diagramLabel.toFixed(1)} px high, too small to read`);
           if (s.tabRows !== 1) problems.push(`${where}: the view tabs wrap onto ${s.tabRows} rows, so a selected tab no longer sits on the tab bar's line`);
           await screenshot(page, `layout-390-${colorScheme}-${label.replace(/[ ,]+/g, "-")}.png`);
         });
