@@ -24,10 +24,11 @@ import path from "node:path";
 import { test } from "node:test";
 
 import {
-  artifacts, cliReport, htmlUrl, jsonDifferences, launch, networkRequests, root, scriptPath, waitReady, waitReport,
+  artifacts, cliPath, cliReport, htmlUrl, jsonDifferences, launch, networkRequests, root, scriptPath, waitReady, waitReport,
 } from "./helpers.mjs";
 
-const bin = path.join(root, "target", "release", "stagewright");
+// The same command line as cliReport's (STAGEWRIGHT_CLI, else the workspace's release build).
+const bin = cliPath;
 const BUILD = "bash scripts/build-web.sh builds it";
 mkdirSync(artifacts, { recursive: true });
 
