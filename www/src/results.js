@@ -216,7 +216,7 @@ export const withResults = (Base) => class extends Base {
       if (c.pass) passed++;
       checkRows.push(h("tr", { class: c.pass ? "pass" : "fail" },
         h("td", null, h("span", { class: "verdict" }, c.pass ? "✓ met" : "✗ not met")),
-        h("th", { scope: "row" }, name, rel ? h("span", { class: "rel" }, " " + rel) : null),
+        h("th", { scope: "row" }, name, rel ? h("span", { class: "rel" }, "\u00a0" + rel) : null),
         h("td", null, cornerValue(report, id) || fmt(c.value, unit)),
         h("td", null, fmt(c.limit, unit)),
         h("td", { class: "msg" }, typeof c.message === "string" ? c.message : "")));

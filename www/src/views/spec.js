@@ -221,6 +221,15 @@ export const withSpecView = (Base) => class extends Base {
     }
   }
 
+  /** A result's name as the core's tables give it ("collector current"
+   * for ic), with "(dB)" for a result in decibels. */
+  _quantityName(key) {
+    const base = key.replace(/_db$/, "");
+    const q = this._tables && this._tables.quantities.find((x) => x.key === base);
+    const name = q ? q.label : base.replace(/_/g, " ");
+    return key.endsWith("_db") ? `${name} (dB)` : name;
+  }
+
   /** Designs the specification in the text box (or `spec`, an object or
    * JSON text) and shows the result; returns it, or null with the core's
    * message shown in place. */
@@ -275,7 +284,7 @@ export const withSpecView = (Base) => class extends Base {
     const diffs = h("table", { class: "numbers spec-diffs" },
       h("caption", null, "Results: ideal and standard-value design"),
       h("thead", null, h("tr", null, ...["result", "ideal", "standard", "difference"].map((c) => h("th", { scope: "col" }, c)))),
-      h("tbody", null, ...r.differences.map((d) => h("tr", null, h("th", { scope: "row" }, d.quantity.replace(/_db$/, " (dB)").replace(/_/g, " ")),
+      h("tbody", null, ...r.differences.map((d) => h("tr", null, h("th", { scope: "row" }, this._quantityName(d.quantity)),
         h("td", null, f(d.ideal, d.unit)), h("td", null, f(d.snapped, d.unit)), h("td", null, signed(d.difference, d.unit))))));
     const failing = r.report.checks.filter((c) => !c.pass);
     const load = h("button", { type: "button", class: "primary", "data-action": "load-spec-design" }, "Load this design into the calculator");
