@@ -443,7 +443,7 @@ impl DesignDocument {
     /// text as it is. A block left empty is removed.
     ///
     /// # Errors
-    /// [`ErrorKind::UnknownKey`] naming `path` (with the nearest key) for
+    /// [`ErrorKind::UnknownKey`](crate::ErrorKind::UnknownKey) naming `path` (with the nearest key) for
     /// a path the design file does not have.
     pub fn set(&mut self, path: &str, text: Option<&str>) -> Result<()> {
         let typed = text.map(typed_of);
