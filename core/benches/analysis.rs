@@ -8,14 +8,18 @@
 //!   small signal, midband, corner search, stability re-solves, ratings) and
 //!   then a 200-point sweep from 10 Hz to 1 GHz for the plot;
 //! - `analyze`: the analysis alone;
-//! - `sweep_200`: the 200-point sweep alone, on an analysis made once.
+//! - `sweep_200`: the 200-point sweep alone, on an analysis made once;
+//! - `dc_stage_solve` and `dc_circuit_engine`: the operating point alone,
+//!   by the stage-specific solve and by the general circuit engine (the
+//!   stage's DC netlist built and solved), to keep the engine's cost in
+//!   view as the analyses move onto it.
 //!
 //! Run: `cargo bench -p stagewright --bench analysis -- --warm-up-time 1 --measurement-time 3`
 
 use std::hint::black_box;
 
 use criterion::{criterion_group, criterion_main, Criterion};
-use stagewright::{analyze, Stage};
+use stagewright::{analyze, dc_netlist, solve_dc, OperatingPoint, Stage};
 
 fn benches(c: &mut Criterion) {
     let stage = Stage::example();
@@ -43,6 +47,22 @@ fn benches(c: &mut Criterion) {
                 .sweep(black_box(10.0), black_box(1e9), 200)
                 .expect("a valid sweep range");
             black_box(sweep.len())
+        })
+    });
+    let device = stage
+        .transistor
+        .device(stage.ambient, stage.transistor.hfe, 0.0);
+    c.bench_function("dc_stage_solve", |b| {
+        b.iter(|| {
+            let op = OperatingPoint::solve(black_box(&stage), &device).expect("solves");
+            black_box(op.ic)
+        })
+    });
+    c.bench_function("dc_circuit_engine", |b| {
+        b.iter(|| {
+            let (net, nodes) = dc_netlist(black_box(&stage), &device);
+            let dc = solve_dc(&net).expect("solves");
+            black_box(dc.voltages[nodes.collector.0])
         })
     });
 }

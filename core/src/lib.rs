@@ -73,6 +73,7 @@ extern crate alloc;
 extern crate std;
 
 mod analysis;
+mod circuit;
 mod complex;
 mod constants;
 mod corner;
@@ -112,6 +113,9 @@ mod transistor;
 mod value;
 
 pub use analysis::{analyze, analyze_with, Analysis, Options};
+pub use circuit::{
+    dc_netlist, solve_dc, DcSolution, Element, Netlist, Node, StageNodes, GROUND, MAX_UNKNOWNS,
+};
 pub use constants::{
     thermal_voltage, Temperature, BOLTZMANN, DATASHEET_TEMPERATURE, ELEMENTARY_CHARGE, ZERO_CELSIUS,
 };

@@ -492,6 +492,42 @@ const COVERAGE: &[(&str, Covered)] = &[
         ),
     ),
     (
+        "dc_netlist",
+        Reference("textbook", "circuit_engine_meets_the_divider_bias_examples"),
+    ),
+    (
+        "solve_dc",
+        Reference("textbook", "circuit_engine_meets_the_divider_bias_examples"),
+    ),
+    (
+        "DcSolution",
+        Reference("textbook", "circuit_engine_meets_the_divider_bias_examples"),
+    ),
+    (
+        "Element",
+        Reference("textbook", "circuit_engine_meets_the_divider_bias_examples"),
+    ),
+    (
+        "Netlist",
+        Reference("textbook", "circuit_engine_meets_the_divider_bias_examples"),
+    ),
+    (
+        "Node",
+        Reference("textbook", "circuit_engine_meets_the_divider_bias_examples"),
+    ),
+    (
+        "StageNodes",
+        Reference("textbook", "circuit_engine_meets_the_divider_bias_examples"),
+    ),
+    (
+        "GROUND",
+        Reference("textbook", "circuit_engine_meets_the_divider_bias_examples"),
+    ),
+    (
+        "MAX_UNKNOWNS",
+        Reference("textbook", "circuit_engine_meets_the_divider_bias_examples"),
+    ),
+    (
         "SpecField",
         Unit(
             "fields",

@@ -32,8 +32,8 @@
 use proptest::prelude::*;
 use proptest::test_runner::RngSeed;
 use stagewright::{
-    analyze, analyze_with, parse_value, preset, Analysis, Options, Parts, Polarity, Stage,
-    StageKind, Temperature,
+    analyze, analyze_with, dc_netlist, parse_value, preset, solve_dc, Analysis, Options, Parts,
+    Polarity, Stage, StageKind, Temperature,
 };
 
 /// The seed of CI runs (any fixed number; this is the date it was chosen).
@@ -418,5 +418,43 @@ proptest! {
         if let Ok(v) = parse_value(&text) {
             prop_assert!(v.is_finite(), "{text:?} gave {v}");
         }
+    }
+}
+
+proptest! {
+    #![proptest_config(config(1024))]
+
+    #[test]
+    fn circuit_engine_agrees_with_the_stage_solve(s in stage()) {
+        // The general circuit engine (netlist, modified nodal analysis,
+        // Newton with the junction limiter, gmin and source stepping) on
+        // the stage's DC netlist must converge wherever the stage-specific
+        // solve does, to the same operating point.
+        //
+        // Bound: 1e-9 relative (issue 10's invariant), on the currents
+        // against the largest current that flows and on the node voltages
+        // against the supply, plus 1e-18 A for a network that carries
+        // almost nothing. Both solves stop at steps of about 1e-11 of
+        // their unknowns and converge quadratically, so they agree far
+        // closer than this unless one of them has not converged.
+        let Ok(a) = analyze(&s) else { return Ok(()); };
+        let op = &a.operating_point;
+        let (net, nodes) = dc_netlist(&s, &op.device);
+        let dc = solve_dc(&net);
+        prop_assert!(dc.is_ok(), "the engine did not converge for {s:?}: {dc:?}");
+        let dc = dc.unwrap();
+        let v = |n: stagewright::Node| dc.voltages[n.0];
+        let scale = current_scale(&s, &a);
+        // The transistor's currents from the engine's node voltages.
+        let sign = s.transistor.polarity.sign();
+        let vbi = v(nodes.base_internal);
+        let cur = op.device.currents(sign * (vbi - v(nodes.emitter)), sign * (vbi - v(nodes.collector)));
+        let close_i = |x: f64, y: f64| (x - y).abs() <= 1e-9 * scale + 1e-18;
+        let close_v = |x: f64, y: f64| (x - y).abs() <= 1e-9 * s.supply;
+        prop_assert!(close_i(sign * cur.ic, sign * op.ic), "ic {} vs {} for {s:?}", sign * cur.ic, op.ic);
+        prop_assert!(close_i(sign * cur.ib, sign * op.ib), "ib {} vs {} for {s:?}", sign * cur.ib, op.ib);
+        prop_assert!(close_v(v(nodes.base), op.vb), "vb {} vs {} for {s:?}", v(nodes.base), op.vb);
+        prop_assert!(close_v(v(nodes.emitter), op.ve), "ve {} vs {} for {s:?}", v(nodes.emitter), op.ve);
+        prop_assert!(close_v(v(nodes.collector), op.vc), "vc {} vs {} for {s:?}", v(nodes.collector), op.vc);
     }
 }

@@ -16,8 +16,8 @@
 //! checked separately from the approximations.
 
 use stagewright::{
-    analyze, thermal_voltage, Analysis, OperatingPoint, Parts, Region, Stage, StageKind,
-    Temperature, TransistorData, BOLTZMANN, ELEMENTARY_CHARGE,
+    analyze, dc_netlist, solve_dc, thermal_voltage, Analysis, OperatingPoint, Parts, Region, Stage,
+    StageKind, Temperature, TransistorData, BOLTZMANN, ELEMENTARY_CHARGE,
 };
 use stagewright_crosschecks::{bisect, book_transistor, check, check_between, Allowed};
 
@@ -209,6 +209,70 @@ fn boylestad_nashelsky_4_7_exact_divider_analysis() {
     ];
     for (what, got, want, tol) in rows {
         check(SOURCE, what, got, want, tol);
+    }
+}
+
+#[test]
+fn circuit_engine_meets_the_divider_bias_examples() {
+    // The general circuit engine (the stage's DC netlist, modified nodal
+    // analysis, Newton) on the two worked divider-bias examples above,
+    // against the books' figures with the same allowances.
+    for (source, s, rows) in [
+        (
+            "Malvino & Bates, Electronic Principles, 7th ed., Ex. 8-3 (circuit engine)",
+            stage(
+                StageKind::CommonEmitter,
+                10.0,
+                Parts {
+                    r1: Some(10e3),
+                    r2: Some(2.2e3),
+                    rc: 3.6e3,
+                    re: 1e3,
+                    rl: OPEN_LOAD,
+                    ..Parts::default()
+                },
+                book_transistor(200.0, 1.1e-3),
+            ),
+            vec![
+                ("VB", 1.8, allowed::MALVINO_8_3_VB),
+                ("IE", 1.1e-3, allowed::MALVINO_8_3_IE),
+                ("VC", 6.1, allowed::MALVINO_8_3_VC),
+            ],
+        ),
+        (
+            "Boylestad & Nashelsky, Electronic Devices and Circuit Theory, 11th ed., Ex. 4.7/4.8 (memory; circuit engine)",
+            stage(
+                StageKind::CommonEmitter,
+                22.0,
+                Parts {
+                    r1: Some(39e3),
+                    r2: Some(3.9e3),
+                    rc: 10e3,
+                    re: 1.5e3,
+                    rl: OPEN_LOAD,
+                    ..Parts::default()
+                },
+                book_transistor(140.0, 0.85e-3),
+            ),
+            vec![("IC", 0.85e-3, allowed::BOYLESTAD_4_7), ("VCE", 12.2, allowed::BOYLESTAD_4_7)],
+        ),
+    ] {
+        let device = s.transistor.device(s.ambient, s.transistor.hfe, 0.0);
+        let (net, nodes) = dc_netlist(&s, &device);
+        let dc = solve_dc(&net).unwrap_or_else(|e| panic!("{source}: {e}"));
+        let v = |n: stagewright::Node| dc.voltages[n.0];
+        let ie = v(nodes.emitter) / s.re_total();
+        let ic = (s.supply - v(nodes.collector)) / s.parts.rc;
+        for (what, want, tol) in rows {
+            let got = match what {
+                "VB" => v(nodes.base),
+                "IE" => ie,
+                "VC" => v(nodes.collector),
+                "IC" => ic,
+                _ => v(nodes.collector) - v(nodes.emitter),
+            };
+            check(source, what, got, want, tol);
+        }
     }
 }
 

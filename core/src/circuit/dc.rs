@@ -1,0 +1,514 @@
+//! The DC solve of a netlist: Newton–Raphson on the MNA residual, with the
+//! junction limiter, gmin stepping and source stepping.
+
+use alloc::string::String;
+use alloc::vec;
+use alloc::vec::Vec;
+
+use super::dense::{Dense, MAX_UNKNOWNS};
+use super::netlist::{Element, Netlist};
+use crate::error::{Error, ErrorKind, Result};
+
+/// Largest number of Newton iterations per attempt.
+const MAX_ITERATIONS: u32 = 200;
+/// Converged when no node moves by more than this, V, plus the relative
+/// part below (both far below any meaningful bias change).
+const STEP_ABS: f64 = 1e-12;
+/// The relative part of the step test.
+const STEP_REL: f64 = 1e-11;
+/// And when Kirchhoff's current law holds at every node to this, A, plus
+/// the relative part below.
+const KCL_ABS: f64 = 1e-15;
+/// The relative part of the KCL test: of the largest current at the node.
+const KCL_REL: f64 = 1e-9;
+
+/// A solved DC state.
+#[derive(Debug, Clone, PartialEq)]
+pub struct DcSolution {
+    /// The voltage of every node of the netlist (ground included, 0 V), V.
+    pub voltages: Vec<f64>,
+    /// The current of every voltage source, in the order of the netlist,
+    /// flowing into its plus terminal from the circuit, A.
+    pub source_currents: Vec<f64>,
+    /// Newton iterations spent, all attempts together.
+    pub iterations: u32,
+}
+
+/// The classic junction voltage limiter (Nagel 1975): above `vcrit`, a
+/// step larger than 2·VT is compressed logarithmically.
+fn limit_junction(v_new: f64, v_old: f64, vt: f64, vcrit: f64) -> (f64, bool) {
+    if v_new > vcrit && libm::fabs(v_new - v_old) > 2.0 * vt {
+        if v_old > 0.0 {
+            let arg = 1.0 + (v_new - v_old) / vt;
+            if arg > 0.0 {
+                (v_old + vt * libm::log(arg), true)
+            } else {
+                (vcrit, true)
+            }
+        } else {
+            (vt * libm::log(v_new / vt), true)
+        }
+    } else {
+        (v_new, false)
+    }
+}
+
+/// The netlist numbered for the solve: shorts merged, an unknown per node
+/// class but ground's and per voltage source.
+struct Numbered<'a> {
+    net: &'a Netlist,
+    /// The unknown of each node's class (`None` for ground).
+    index: Vec<Option<usize>>,
+    /// The first voltage-source unknown.
+    first_source: usize,
+    /// The number of unknowns.
+    n: usize,
+}
+
+fn find(parent: &mut [usize], mut i: usize) -> usize {
+    while parent[i] != i {
+        parent[i] = parent[parent[i]];
+        i = parent[i];
+    }
+    i
+}
+
+impl<'a> Numbered<'a> {
+    fn new(net: &'a Netlist) -> Result<Numbered<'a>> {
+        let nodes = net.nodes();
+        let mut parent: Vec<usize> = (0..nodes).collect();
+        for e in net.elements() {
+            if let Element::Resistor { a, b, ohms } = *e {
+                if ohms == 0.0 {
+                    let (ra, rb) = (find(&mut parent, a.0), find(&mut parent, b.0));
+                    // Ground stays the root of its class.
+                    let (keep, drop) = if rb == 0 { (rb, ra) } else { (ra, rb) };
+                    parent[drop] = keep;
+                }
+            }
+        }
+        let ground = find(&mut parent, 0);
+        let mut class_index: Vec<Option<usize>> = vec![None; nodes];
+        let mut index = vec![None; nodes];
+        let mut next = 0;
+        for (i, slot) in index.iter_mut().enumerate() {
+            let r = find(&mut parent, i);
+            if r == ground {
+                continue;
+            }
+            if class_index[r].is_none() {
+                class_index[r] = Some(next);
+                next += 1;
+            }
+            *slot = class_index[r];
+        }
+        let sources = net
+            .elements()
+            .iter()
+            .filter(|e| matches!(e, Element::VoltageSource { .. }))
+            .count();
+        let n = next + sources;
+        if n > MAX_UNKNOWNS {
+            return Err(Error::new(
+                "netlist",
+                ErrorKind::OutOfRange {
+                    value: n as f64,
+                    unit: "",
+                    allowed: String::from(
+                        "at most 16 unknowns (node voltages and voltage-source currents)",
+                    ),
+                },
+            ));
+        }
+        Ok(Numbered {
+            net,
+            index,
+            first_source: next,
+            n,
+        })
+    }
+
+    fn v(&self, x: &[f64; MAX_UNKNOWNS], node: usize) -> f64 {
+        self.index[node].map_or(0.0, |i| x[i])
+    }
+}
+
+/// The state of each transistor's two junctions between iterations (in
+/// its NPN frame).
+#[derive(Debug, Clone, Copy)]
+struct Junctions {
+    vbe: f64,
+    vbc: f64,
+}
+
+/// One Newton attempt at source scale `scale` and node-to-ground
+/// conductance `gmin`, from `x` and the junction states `j`; returns the
+/// solution and its iterations, or `None`.
+fn newton(
+    num: &Numbered<'_>,
+    x: &mut [f64; MAX_UNKNOWNS],
+    j: &mut [Junctions],
+    scale: f64,
+    gmin: f64,
+) -> Option<u32> {
+    let n = num.n;
+    // The linear part, stamped once per attempt.
+    let mut lin = Dense::new(n);
+    let mut k = num.first_source;
+    for e in num.net.elements() {
+        match *e {
+            Element::Resistor { a, b, ohms } if ohms > 0.0 => {
+                let g = 1.0 / ohms;
+                let (ia, ib) = (num.index[a.0], num.index[b.0]);
+                if let Some(i) = ia {
+                    lin.a[i][i] += g;
+                }
+                if let Some(i) = ib {
+                    lin.a[i][i] += g;
+                }
+                if let (Some(i), Some(m)) = (ia, ib) {
+                    lin.a[i][m] -= g;
+                    lin.a[m][i] -= g;
+                }
+            }
+            Element::VoltageSource { plus, minus, volts } => {
+                if let Some(i) = num.index[plus.0] {
+                    lin.a[i][k] += 1.0;
+                    lin.a[k][i] += 1.0;
+                }
+                if let Some(i) = num.index[minus.0] {
+                    lin.a[i][k] -= 1.0;
+                    lin.a[k][i] -= 1.0;
+                }
+                lin.b[k] = volts * scale;
+                k += 1;
+            }
+            Element::CurrentSource { from, to, amps } => {
+                if let Some(i) = num.index[from.0] {
+                    lin.b[i] -= amps * scale;
+                }
+                if let Some(i) = num.index[to.0] {
+                    lin.b[i] += amps * scale;
+                }
+            }
+            _ => {}
+        }
+    }
+    for i in 0..num.first_source {
+        lin.a[i][i] += gmin;
+    }
+    for it in 1..=MAX_ITERATIONS {
+        let mut sys = lin;
+        let mut t = 0;
+        for e in num.net.elements() {
+            let Element::Bjt {
+                c,
+                b,
+                e: em,
+                device,
+                polarity,
+            } = *e
+            else {
+                continue;
+            };
+            let s = polarity.sign();
+            let jn = j[t];
+            t += 1;
+            let cur = device.currents(jn.vbe, jn.vbc);
+            // Norton companion in the real frame: the current into each
+            // terminal is s·(I0 + g·(v − v0)) with v = s·(node differences),
+            // so the conductances are the NPN frame's and the equivalent
+            // currents change sign with the polarity.
+            let ic_eq = s * (cur.ic - cur.dic_dvbe * jn.vbe - cur.dic_dvbc * jn.vbc);
+            let ib_eq = s * (cur.ib - cur.dib_dvbe * jn.vbe - cur.dib_dvbc * jn.vbc);
+            let rows = [
+                (num.index[c.0], cur.dic_dvbe, cur.dic_dvbc, ic_eq),
+                (num.index[b.0], cur.dib_dvbe, cur.dib_dvbc, ib_eq),
+                (
+                    num.index[em.0],
+                    -(cur.dic_dvbe + cur.dib_dvbe),
+                    -(cur.dic_dvbc + cur.dib_dvbc),
+                    -(ic_eq + ib_eq),
+                ),
+            ];
+            let (nb, ne, nc) = (num.index[b.0], num.index[em.0], num.index[c.0]);
+            for (row, g_be, g_bc, i_eq) in rows {
+                let Some(r) = row else { continue };
+                // i = g_be·(Vb − Ve) + g_bc·(Vb − Vc) + i_eq leaves the node.
+                if let Some(col) = nb {
+                    sys.a[r][col] += g_be + g_bc;
+                }
+                if let Some(col) = ne {
+                    sys.a[r][col] -= g_be;
+                }
+                if let Some(col) = nc {
+                    sys.a[r][col] -= g_bc;
+                }
+                sys.b[r] -= i_eq;
+            }
+        }
+        let new = sys.solve()?;
+        // The new junction voltages, limited.
+        let mut limited = false;
+        let mut t = 0;
+        for e in num.net.elements() {
+            let Element::Bjt {
+                c,
+                b,
+                e: em,
+                device,
+                polarity,
+            } = *e
+            else {
+                continue;
+            };
+            let s = polarity.sign();
+            let vb = num.v(&new, b.0);
+            let vbe = s * (vb - num.v(&new, em.0));
+            let vbc = s * (vb - num.v(&new, c.0));
+            let vcrit = device.v_critical();
+            let (vbe, l1) = limit_junction(vbe, j[t].vbe, device.vt, vcrit);
+            let (vbc, l2) = limit_junction(vbc, j[t].vbc, device.vt, vcrit);
+            limited |= l1 || l2;
+            j[t] = Junctions { vbe, vbc };
+            t += 1;
+        }
+        let mut step: f64 = 0.0;
+        let mut size: f64 = 0.0;
+        for i in 0..n {
+            step = step.max(libm::fabs(new[i] - x[i]));
+            size = size.max(libm::fabs(new[i]));
+        }
+        *x = new;
+        if !limited && step <= STEP_ABS + STEP_REL * size && kcl_holds(num, x, scale, gmin) {
+            return Some(it);
+        }
+    }
+    None
+}
+
+/// Whether Kirchhoff's current law holds at every node at `x`, with the
+/// devices' currents evaluated at the node voltages themselves: the sum at
+/// each node within [`KCL_ABS`] plus [`KCL_REL`] of the largest current
+/// there, plus what the rounding of the node voltages alone makes of each
+/// current (8 ε of the voltages, through each element's conductance: a
+/// 1 Ω resistor at 25 V carries 6e-15 A of rounding, more than a cut-off
+/// transistor's whole current).
+fn kcl_holds(num: &Numbered<'_>, x: &[f64; MAX_UNKNOWNS], scale: f64, gmin: f64) -> bool {
+    let m = num.first_source;
+    let mut sum = [0.0; MAX_UNKNOWNS];
+    let mut allow = [0.0f64; MAX_UNKNOWNS];
+    let mut add = |node: usize, i: f64, rounding: f64| {
+        if let Some(r) = num.index[node] {
+            sum[r] += i;
+            allow[r] = allow[r].max(KCL_REL * libm::fabs(i)) + rounding;
+        }
+    };
+    let eps = 8.0 * f64::EPSILON;
+    let mut k = num.first_source;
+    for e in num.net.elements() {
+        match *e {
+            Element::Resistor { a, b, ohms } if ohms > 0.0 => {
+                let (va, vb) = (num.v(x, a.0), num.v(x, b.0));
+                let i = (va - vb) / ohms;
+                let rounding = eps * libm::fmax(libm::fabs(va), libm::fabs(vb)) / ohms;
+                add(a.0, i, rounding);
+                add(b.0, -i, rounding);
+            }
+            Element::VoltageSource { plus, minus, .. } => {
+                let i = x[k];
+                add(plus.0, i, 0.0);
+                add(minus.0, -i, 0.0);
+                k += 1;
+            }
+            Element::CurrentSource { from, to, amps } => {
+                add(from.0, amps * scale, 0.0);
+                add(to.0, -amps * scale, 0.0);
+            }
+            Element::Bjt {
+                c,
+                b,
+                e: em,
+                device,
+                polarity,
+            } => {
+                let s = polarity.sign();
+                let (vb, ve, vc) = (num.v(x, b.0), num.v(x, em.0), num.v(x, c.0));
+                let cur = device.currents(s * (vb - ve), s * (vb - vc));
+                let v =
+                    eps * libm::fmax(libm::fabs(vb), libm::fmax(libm::fabs(ve), libm::fabs(vc)));
+                let gc = libm::fabs(cur.dic_dvbe) + libm::fabs(cur.dic_dvbc);
+                let gb = libm::fabs(cur.dib_dvbe) + libm::fabs(cur.dib_dvbc);
+                add(c.0, s * cur.ic, gc * v);
+                add(b.0, s * cur.ib, gb * v);
+                add(em.0, -s * (cur.ic + cur.ib), (gc + gb) * v);
+            }
+            _ => {}
+        }
+    }
+    (0..m).all(|r| libm::fabs(sum[r] + gmin * x[r]) <= KCL_ABS + allow[r])
+}
+
+/// Solves the DC state of `net`: plain Newton first, then gmin stepping,
+/// then source stepping.
+///
+/// # Errors
+/// [`ErrorKind::OutOfRange`] naming `netlist` when it has more than
+/// [`MAX_UNKNOWNS`] unknowns; [`ErrorKind::NoConvergence`] naming
+/// `operating point` when no method converges.
+pub fn solve_dc(net: &Netlist) -> Result<DcSolution> {
+    let num = Numbered::new(net)?;
+    let transistors: Vec<_> = net
+        .elements()
+        .iter()
+        .filter_map(|e| match *e {
+            Element::Bjt { device, .. } => Some(device),
+            _ => None,
+        })
+        .collect();
+    let supply = net
+        .elements()
+        .iter()
+        .filter_map(|e| match *e {
+            Element::VoltageSource { volts, .. } => Some(libm::fabs(volts)),
+            _ => None,
+        })
+        .fold(0.0, f64::max);
+    // Each junction starts just on: the base–emitter at 0.6 V (or its
+    // critical voltage, if lower), the base–collector reverse biased by
+    // half the largest supply.
+    let start: Vec<Junctions> = transistors
+        .iter()
+        .map(|d| {
+            let vbe = libm::fmin(d.v_critical(), 0.6);
+            Junctions {
+                vbe,
+                vbc: vbe - 0.5 * supply,
+            }
+        })
+        .collect();
+    let mut x = [0.0; MAX_UNKNOWNS];
+    let mut j = start.clone();
+    let mut total = 0;
+    let mut solved = newton(&num, &mut x, &mut j, 1.0, 0.0).map(|it| {
+        total += it;
+    });
+    if solved.is_none() {
+        // gmin stepping: from 10 mS down by decades, each solution seeding
+        // the next, then without.
+        x = [0.0; MAX_UNKNOWNS];
+        j.clone_from(&start);
+        let mut ok = true;
+        for k in 0..=11 {
+            let gmin = if k == 11 {
+                0.0
+            } else {
+                libm::pow(10.0, -2.0 - k as f64)
+            };
+            match newton(&num, &mut x, &mut j, 1.0, gmin) {
+                Some(it) => total += it,
+                None => {
+                    ok = false;
+                    break;
+                }
+            }
+        }
+        if ok {
+            solved = Some(());
+        }
+    }
+    if solved.is_none() {
+        // Source stepping: every source ramped up from zero in 20 steps.
+        x = [0.0; MAX_UNKNOWNS];
+        for jn in j.iter_mut() {
+            *jn = Junctions { vbe: 0.0, vbc: 0.0 };
+        }
+        let mut ok = true;
+        for k in 1..=20 {
+            match newton(&num, &mut x, &mut j, k as f64 / 20.0, 0.0) {
+                Some(it) => total += it,
+                None => {
+                    ok = false;
+                    break;
+                }
+            }
+        }
+        if ok {
+            solved = Some(());
+        }
+    }
+    if solved.is_none() {
+        return Err(Error::new(
+            "operating point",
+            ErrorKind::NoConvergence {
+                iterations: total,
+                residual: f64::NAN,
+            },
+        ));
+    }
+    let voltages = (0..net.nodes()).map(|i| num.v(&x, i)).collect();
+    let source_currents = x[num.first_source..num.n].to_vec();
+    Ok(DcSolution {
+        voltages,
+        source_currents,
+        iterations: total,
+    })
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::circuit::netlist::{Netlist, GROUND};
+
+    #[test]
+    fn a_divider_and_a_short_solve_by_ohms_law() {
+        // 12 V across 10 kΩ + 20 kΩ, and a 0 Ω link to a third node: 8 V at
+        // the middle (Ohm's law), 0.4 mA drawn from the source.
+        let mut net = Netlist::new();
+        let (top, mid, link) = (net.node(), net.node(), net.node());
+        net.add(Element::VoltageSource {
+            plus: top,
+            minus: GROUND,
+            volts: 12.0,
+        });
+        net.add(Element::Resistor {
+            a: top,
+            b: mid,
+            ohms: 10e3,
+        });
+        net.add(Element::Resistor {
+            a: mid,
+            b: GROUND,
+            ohms: 20e3,
+        });
+        net.add(Element::Resistor {
+            a: mid,
+            b: link,
+            ohms: 0.0,
+        });
+        net.add(Element::Capacitor {
+            a: link,
+            b: GROUND,
+            farads: 1e-6,
+        });
+        let s = solve_dc(&net).expect("linear");
+        assert!((s.voltages[mid.0] - 8.0).abs() < 1e-12);
+        assert!((s.voltages[link.0] - 8.0).abs() < 1e-12, "the short");
+        // Into the plus terminal from the circuit: −0.4 mA (the source drives).
+        assert!((s.source_currents[0] + 0.4e-3).abs() < 1e-15);
+        // A current source of 1 mA into 1 kΩ: 1 V.
+        let mut net = Netlist::new();
+        let a = net.node();
+        net.add(Element::CurrentSource {
+            from: GROUND,
+            to: a,
+            amps: 1e-3,
+        });
+        net.add(Element::Resistor {
+            a,
+            b: GROUND,
+            ohms: 1e3,
+        });
+        assert!((solve_dc(&net).expect("linear").voltages[a.0] - 1.0).abs() < 1e-12);
+    }
+}

@@ -1,0 +1,56 @@
+//! One general circuit engine: a netlist of elements and a DC solve by
+//! modified nodal analysis, for every stage alike.
+//!
+//! # Formulation
+//! Modified nodal analysis (Ho, Ruehli & Brennan, IEEE Trans. Circuits and
+//! Systems CAS-22, 1975; the stamps as in Vlach & Singhal, *Computer
+//! Methods for Circuit Analysis and Design*): the unknowns are the voltage
+//! of every node but ground (node 0) and the current of every voltage
+//! source. Resistors and current sources stamp the conductance matrix and
+//! the right-hand side; a voltage source adds a row and a column. A
+//! zero-ohm resistor is a short: its two nodes are merged before the
+//! unknowns are numbered (union–find, as in [`crate::AcNetwork`]), so no
+//! infinite conductance is ever stamped. Capacitors are open at DC.
+//!
+//! # The transistor
+//! The Ebers–Moll transport model with the Early effect of [`Device`]
+//! (the same [`Device::currents`] the topology-specific solve uses), in
+//! the NPN frame; a PNP device is the same model with every terminal
+//! voltage and current negated. Its base spreading resistance rbb' is a
+//! resistor of the netlist between the base terminal and the internal
+//! base node.
+//!
+//! # DC
+//! Newton–Raphson on the MNA residual with the device linearised at each
+//! iterate (its currents and their derivatives stamped as a Norton
+//! companion). Steps of the two junction voltages are limited
+//! logarithmically above the junction's critical voltage (Nagel, SPICE2,
+//! UC Berkeley memorandum ERL-M520, 1975). Convergence asks both for a
+//! small step (absolute plus relative in volts) and a small KCL residual
+//! (absolute plus relative in amperes). When plain Newton fails, gmin
+//! stepping (a conductance from every node to ground, stepped down to
+//! zero) and then source stepping (every source ramped up from zero) are
+//! tried, as circuit simulators do (Vlach & Singhal; Kundert, *The
+//! Designer's Guide to SPICE and Spectre*).
+//!
+//! # Matrices
+//! Small and dense: at most [`MAX_UNKNOWNS`] unknowns, on the stack, LU
+//! with partial pivoting. No allocation inside the Newton loop.
+//!
+//! This is the engine's first step: the stages' DC netlists
+//! ([`dc_netlist`]) solve to the operating point of
+//! [`crate::OperatingPoint::solve`] (a test holds them together to 1e-9);
+//! the AC, transient and steady-state analyses follow on the same netlist.
+
+mod dc;
+mod dense;
+mod netlist;
+mod stages;
+
+pub use dc::{solve_dc, DcSolution};
+pub use dense::MAX_UNKNOWNS;
+pub use netlist::{Element, Netlist, Node, GROUND};
+pub use stages::{dc_netlist, StageNodes};
+
+#[cfg(doc)]
+use crate::transistor::Device;
