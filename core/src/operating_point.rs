@@ -88,7 +88,7 @@ const STEP_TOLERANCE: f64 = 1e-11;
 
 /// The classic junction voltage limiter: above `vcrit`, a step larger than
 /// 2·VT is compressed logarithmically.
-fn limit_junction(v_new: f64, v_old: f64, vt: f64, vcrit: f64) -> (f64, bool) {
+pub(crate) fn limit_junction(v_new: f64, v_old: f64, vt: f64, vcrit: f64) -> (f64, bool) {
     if v_new > vcrit && libm::fabs(v_new - v_old) > 2.0 * vt {
         if v_old > 0.0 {
             let arg = 1.0 + (v_new - v_old) / vt;

@@ -156,10 +156,9 @@ fn par(a: f64, b: f64) -> f64 {
 // DC bias
 // ---------------------------------------------------------------------------
 
-#[test]
-fn malvino_bates_8_3_divider_bias() {
-    const SOURCE: &str = "Malvino & Bates, Electronic Principles, 7th ed., Ex. 8-3";
-    let s = stage(
+/// Malvino & Bates' Ex. 8-3 divider-biased stage.
+fn malvino_8_3_stage() -> Stage {
+    stage(
         StageKind::CommonEmitter,
         10.0,
         Parts {
@@ -171,7 +170,30 @@ fn malvino_bates_8_3_divider_bias() {
             ..Parts::default()
         },
         book_transistor(200.0, 1.1e-3),
-    );
+    )
+}
+
+/// Boylestad & Nashelsky's Ex. 4.7 divider-biased stage.
+fn boylestad_4_7_stage() -> Stage {
+    stage(
+        StageKind::CommonEmitter,
+        22.0,
+        Parts {
+            r1: Some(39e3),
+            r2: Some(3.9e3),
+            rc: 10e3,
+            re: 1.5e3,
+            rl: OPEN_LOAD,
+            ..Parts::default()
+        },
+        book_transistor(140.0, 0.85e-3),
+    )
+}
+
+#[test]
+fn malvino_bates_8_3_divider_bias() {
+    const SOURCE: &str = "Malvino & Bates, Electronic Principles, 7th ed., Ex. 8-3";
+    let s = malvino_8_3_stage();
     let a = run(SOURCE, &s);
     let op = &a.operating_point;
     let rows = [
@@ -188,19 +210,7 @@ fn malvino_bates_8_3_divider_bias() {
 fn boylestad_nashelsky_4_7_exact_divider_analysis() {
     const SOURCE: &str =
         "Boylestad & Nashelsky, Electronic Devices and Circuit Theory, 11th ed., Ex. 4.7/4.8 (memory)";
-    let s = stage(
-        StageKind::CommonEmitter,
-        22.0,
-        Parts {
-            r1: Some(39e3),
-            r2: Some(3.9e3),
-            rc: 10e3,
-            re: 1.5e3,
-            rl: OPEN_LOAD,
-            ..Parts::default()
-        },
-        book_transistor(140.0, 0.85e-3),
-    );
+    let s = boylestad_4_7_stage();
     let a = run(SOURCE, &s);
     let op = &a.operating_point;
     let rows = [
@@ -220,19 +230,7 @@ fn circuit_engine_meets_the_divider_bias_examples() {
     for (source, s, rows) in [
         (
             "Malvino & Bates, Electronic Principles, 7th ed., Ex. 8-3 (circuit engine)",
-            stage(
-                StageKind::CommonEmitter,
-                10.0,
-                Parts {
-                    r1: Some(10e3),
-                    r2: Some(2.2e3),
-                    rc: 3.6e3,
-                    re: 1e3,
-                    rl: OPEN_LOAD,
-                    ..Parts::default()
-                },
-                book_transistor(200.0, 1.1e-3),
-            ),
+            malvino_8_3_stage(),
             vec![
                 ("VB", 1.8, allowed::MALVINO_8_3_VB),
                 ("IE", 1.1e-3, allowed::MALVINO_8_3_IE),
@@ -241,19 +239,7 @@ fn circuit_engine_meets_the_divider_bias_examples() {
         ),
         (
             "Boylestad & Nashelsky, Electronic Devices and Circuit Theory, 11th ed., Ex. 4.7/4.8 (memory; circuit engine)",
-            stage(
-                StageKind::CommonEmitter,
-                22.0,
-                Parts {
-                    r1: Some(39e3),
-                    r2: Some(3.9e3),
-                    rc: 10e3,
-                    re: 1.5e3,
-                    rl: OPEN_LOAD,
-                    ..Parts::default()
-                },
-                book_transistor(140.0, 0.85e-3),
-            ),
+            boylestad_4_7_stage(),
             vec![("IC", 0.85e-3, allowed::BOYLESTAD_4_7), ("VCE", 12.2, allowed::BOYLESTAD_4_7)],
         ),
     ] {

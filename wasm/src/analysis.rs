@@ -370,6 +370,42 @@ fn default_text(key: &str) -> Option<String> {
     })
 }
 
+/// The menu of a choice field, `[[value, words]]`: the stages, the
+/// polarities (with "from the class"), the E-series; null for the preset,
+/// whose menu comes from `presets()`.
+fn choices(key: &str) -> JsValue {
+    use stagewright::{Polarity, StageKind};
+    let options = js_sys::Array::new();
+    let push = |a: &str, b: &str| {
+        let p = js_sys::Array::new();
+        p.push(&JsValue::from_str(a));
+        p.push(&JsValue::from_str(b));
+        options.push(&p);
+    };
+    match key {
+        "stage" => {
+            for s in StageKind::ALL {
+                push(s.name(), s.label());
+            }
+        }
+        "transistor.polarity" => {
+            push("", "from the class");
+            // (Written out: `to_uppercase` would bring in Unicode's case
+            // tables, several KB of the page.)
+            for (p, words) in [(Polarity::Npn, "NPN"), (Polarity::Pnp, "PNP")] {
+                push(p.name(), words);
+            }
+        }
+        "series.resistors" | "series.capacitors" => {
+            for e in stagewright::ESeries::ALL {
+                push(e.name(), e.name());
+            }
+        }
+        _ => return JsValue::NULL,
+    }
+    options.into()
+}
+
 /// The design form's schema, from the core's tables: the groups of
 /// fields (`stagewright::FIELDS`, the requirements from
 /// `stagewright::REQUIREMENTS`), the stages with their words and the parts
@@ -384,7 +420,7 @@ fn default_text(key: &str) -> Option<String> {
 /// menu comes from `presets()`).
 #[wasm_bindgen]
 pub fn fields() -> JsValue {
-    use stagewright::{Family, FieldKind, Group, Polarity, StageKind};
+    use stagewright::{Family, FieldKind, Group, StageKind};
     let pair = |a: &str, b: &str| {
         let p = js_sys::Array::new();
         p.push(&JsValue::from_str(a));
@@ -449,25 +485,7 @@ pub fn fields() -> JsValue {
                 None => {}
             }
             if f.kind == FieldKind::Choice {
-                let options = js_sys::Array::new();
-                match f.key {
-                    "stage" => {
-                        for s in StageKind::ALL {
-                            options.push(&pair(s.name(), s.label()));
-                        }
-                        o.set("options", options);
-                    }
-                    "transistor.polarity" => {
-                        options.push(&pair("", "from the class"));
-                        // (Written out: `to_uppercase` would bring in
-                        // Unicode's case tables, several KB of the page.)
-                        for (p, words) in [(Polarity::Npn, "NPN"), (Polarity::Pnp, "PNP")] {
-                            options.push(&pair(p.name(), words));
-                        }
-                        o.set("options", options);
-                    }
-                    _ => o.set("options", JsValue::NULL),
-                }
+                o.set("options", choices(f.key));
             }
             list.push(&o.into());
         }
@@ -498,27 +516,7 @@ pub fn fields() -> JsValue {
         let o = one(f.key, f.label, f.unit, kind);
         o.set("default", f.default);
         if f.kind == FieldKind::Choice {
-            let options = js_sys::Array::new();
-            match f.key {
-                "stage" => {
-                    for s in StageKind::ALL {
-                        options.push(&pair(s.name(), s.label()));
-                    }
-                }
-                "transistor.polarity" => {
-                    options.push(&pair("", "from the class"));
-                    for (p, words) in [(Polarity::Npn, "NPN"), (Polarity::Pnp, "PNP")] {
-                        options.push(&pair(p.name(), words));
-                    }
-                }
-                "series.resistors" | "series.capacitors" => {
-                    for e in stagewright::ESeries::ALL {
-                        options.push(&pair(e.name(), e.name()));
-                    }
-                }
-                _ => {}
-            }
-            o.set("options", options);
+            o.set("options", choices(f.key));
         }
         spec.push(&o.into());
     }

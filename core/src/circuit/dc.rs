@@ -6,8 +6,12 @@ use alloc::vec;
 use alloc::vec::Vec;
 
 use super::dense::{Dense, MAX_UNKNOWNS};
-use super::netlist::{Element, Netlist};
+use super::netlist::{Element, Netlist, Node};
 use crate::error::{Error, ErrorKind, Result};
+use crate::transistor::{Device, Polarity};
+// The classic junction voltage limiter (Nagel 1975), shared with the
+// stage-specific solve.
+use crate::operating_point::limit_junction;
 
 /// Largest number of Newton iterations per attempt.
 const MAX_ITERATIONS: u32 = 200;
@@ -32,25 +36,6 @@ pub struct DcSolution {
     pub source_currents: Vec<f64>,
     /// Newton iterations spent, all attempts together.
     pub iterations: u32,
-}
-
-/// The classic junction voltage limiter (Nagel 1975): above `vcrit`, a
-/// step larger than 2·VT is compressed logarithmically.
-fn limit_junction(v_new: f64, v_old: f64, vt: f64, vcrit: f64) -> (f64, bool) {
-    if v_new > vcrit && libm::fabs(v_new - v_old) > 2.0 * vt {
-        if v_old > 0.0 {
-            let arg = 1.0 + (v_new - v_old) / vt;
-            if arg > 0.0 {
-                (v_old + vt * libm::log(arg), true)
-            } else {
-                (vcrit, true)
-            }
-        } else {
-            (vt * libm::log(v_new / vt), true)
-        }
-    } else {
-        (v_new, false)
-    }
 }
 
 /// The netlist numbered for the solve: shorts merged, an unknown per node
@@ -133,6 +118,21 @@ impl<'a> Numbered<'a> {
     }
 }
 
+/// The transistors of `net`, in order: collector, internal base, emitter,
+/// model, polarity.
+fn transistors(net: &Netlist) -> impl Iterator<Item = (Node, Node, Node, Device, Polarity)> + '_ {
+    net.elements().iter().filter_map(|e| match *e {
+        Element::Bjt {
+            c,
+            b,
+            e,
+            device,
+            polarity,
+        } => Some((c, b, e, device, polarity)),
+        _ => None,
+    })
+}
+
 /// The state of each transistor's two junctions between iterations (in
 /// its NPN frame).
 #[derive(Debug, Clone, Copy)]
@@ -199,21 +199,9 @@ fn newton(
     }
     for it in 1..=MAX_ITERATIONS {
         let mut sys = lin;
-        let mut t = 0;
-        for e in num.net.elements() {
-            let Element::Bjt {
-                c,
-                b,
-                e: em,
-                device,
-                polarity,
-            } = *e
-            else {
-                continue;
-            };
+        for (t, (c, b, em, device, polarity)) in transistors(num.net).enumerate() {
             let s = polarity.sign();
             let jn = j[t];
-            t += 1;
             let cur = device.currents(jn.vbe, jn.vbc);
             // Norton companion in the real frame: the current into each
             // terminal is s·(I0 + g·(v − v0)) with v = s·(node differences),
@@ -250,18 +238,7 @@ fn newton(
         let new = sys.solve()?;
         // The new junction voltages, limited.
         let mut limited = false;
-        let mut t = 0;
-        for e in num.net.elements() {
-            let Element::Bjt {
-                c,
-                b,
-                e: em,
-                device,
-                polarity,
-            } = *e
-            else {
-                continue;
-            };
+        for (t, (c, b, em, device, polarity)) in transistors(num.net).enumerate() {
             let s = polarity.sign();
             let vb = num.v(&new, b.0);
             let vbe = s * (vb - num.v(&new, em.0));
@@ -271,7 +248,6 @@ fn newton(
             let (vbc, l2) = limit_junction(vbc, j[t].vbc, device.vt, vcrit);
             limited |= l1 || l2;
             j[t] = Junctions { vbe, vbc };
-            t += 1;
         }
         let mut step: f64 = 0.0;
         let mut size: f64 = 0.0;
@@ -393,27 +369,34 @@ pub fn solve_dc(net: &Netlist) -> Result<DcSolution> {
     let mut solved = newton(&num, &mut x, &mut j, 1.0, 0.0).map(|it| {
         total += it;
     });
-    if solved.is_none() {
-        // gmin stepping: from 10 mS down by decades, each solution seeding
-        // the next, then without.
-        x = [0.0; MAX_UNKNOWNS];
-        j.clone_from(&start);
-        let mut ok = true;
-        for k in 0..=11 {
-            let gmin = if k == 11 {
-                0.0
-            } else {
-                libm::pow(10.0, -2.0 - k as f64)
-            };
-            match newton(&num, &mut x, &mut j, 1.0, gmin) {
+    // A continuation: Newton at each (source scale, gmin) in turn, each
+    // solution seeding the next; true when every step converged.
+    let mut ramp = |x: &mut [f64; MAX_UNKNOWNS],
+                    j: &mut [Junctions],
+                    steps: &mut dyn Iterator<Item = (f64, f64)>| {
+        for (scale, gmin) in steps {
+            match newton(&num, x, j, scale, gmin) {
                 Some(it) => total += it,
-                None => {
-                    ok = false;
-                    break;
-                }
+                None => return false,
             }
         }
-        if ok {
+        true
+    };
+    if solved.is_none() {
+        // gmin stepping: from 10 mS down by decades, then without.
+        x = [0.0; MAX_UNKNOWNS];
+        j.clone_from(&start);
+        let mut steps = (0..=11).map(|k| {
+            (
+                1.0,
+                if k == 11 {
+                    0.0
+                } else {
+                    libm::pow(10.0, -2.0 - k as f64)
+                },
+            )
+        });
+        if ramp(&mut x, &mut j, &mut steps) {
             solved = Some(());
         }
     }
@@ -423,17 +406,8 @@ pub fn solve_dc(net: &Netlist) -> Result<DcSolution> {
         for jn in j.iter_mut() {
             *jn = Junctions { vbe: 0.0, vbc: 0.0 };
         }
-        let mut ok = true;
-        for k in 1..=20 {
-            match newton(&num, &mut x, &mut j, k as f64 / 20.0, 0.0) {
-                Some(it) => total += it,
-                None => {
-                    ok = false;
-                    break;
-                }
-            }
-        }
-        if ok {
+        let mut steps = (1..=20).map(|k| (k as f64 / 20.0, 0.0));
+        if ramp(&mut x, &mut j, &mut steps) {
             solved = Some(());
         }
     }
