@@ -333,6 +333,25 @@ fn kcl_holds(num: &Numbered<'_>, x: &[f64; MAX_UNKNOWNS], scale: f64, gmin: f64)
 /// [`MAX_UNKNOWNS`] unknowns; [`ErrorKind::NoConvergence`] naming
 /// `operating point` when no method converges.
 pub fn solve_dc(net: &Netlist) -> Result<DcSolution> {
+    solve_with(
+        net,
+        &[Method::Newton, Method::GminStepping, Method::SourceStepping],
+    )
+}
+
+/// The ways to a DC solution, tried in the order given.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub(crate) enum Method {
+    /// Plain Newton from the starting junction voltages.
+    Newton,
+    /// A conductance from every node to ground, stepped down to zero.
+    GminStepping,
+    /// Every source ramped up from zero.
+    SourceStepping,
+}
+
+/// [`solve_dc`] with the given methods, in order, until one converges.
+pub(crate) fn solve_with(net: &Netlist, methods: &[Method]) -> Result<DcSolution> {
     let num = Numbered::new(net)?;
     let transistors: Vec<_> = net
         .elements()
@@ -366,9 +385,6 @@ pub fn solve_dc(net: &Netlist) -> Result<DcSolution> {
     let mut x = [0.0; MAX_UNKNOWNS];
     let mut j = start.clone();
     let mut total = 0;
-    let mut solved = newton(&num, &mut x, &mut j, 1.0, 0.0).map(|it| {
-        total += it;
-    });
     // A continuation: Newton at each (source scale, gmin) in turn, each
     // solution seeding the next; true when every step converged.
     let mut ramp = |x: &mut [f64; MAX_UNKNOWNS],
@@ -382,33 +398,41 @@ pub fn solve_dc(net: &Netlist) -> Result<DcSolution> {
         }
         true
     };
-    if solved.is_none() {
-        // gmin stepping: from 10 mS down by decades, then without.
+    let mut solved = None;
+    for method in methods {
         x = [0.0; MAX_UNKNOWNS];
-        j.clone_from(&start);
-        let mut steps = (0..=11).map(|k| {
-            (
-                1.0,
-                if k == 11 {
-                    0.0
-                } else {
-                    libm::pow(10.0, -2.0 - k as f64)
-                },
-            )
-        });
-        if ramp(&mut x, &mut j, &mut steps) {
+        let ok = match method {
+            Method::Newton => {
+                j.clone_from(&start);
+                ramp(&mut x, &mut j, &mut core::iter::once((1.0, 0.0)))
+            }
+            // From 10 mS down by decades, then without.
+            Method::GminStepping => {
+                j.clone_from(&start);
+                let mut steps = (0..=11).map(|k| {
+                    (
+                        1.0,
+                        if k == 11 {
+                            0.0
+                        } else {
+                            libm::pow(10.0, -2.0 - k as f64)
+                        },
+                    )
+                });
+                ramp(&mut x, &mut j, &mut steps)
+            }
+            // From nothing to the full sources in 20 steps.
+            Method::SourceStepping => {
+                for jn in j.iter_mut() {
+                    *jn = Junctions { vbe: 0.0, vbc: 0.0 };
+                }
+                let mut steps = (1..=20).map(|k| (k as f64 / 20.0, 0.0));
+                ramp(&mut x, &mut j, &mut steps)
+            }
+        };
+        if ok {
             solved = Some(());
-        }
-    }
-    if solved.is_none() {
-        // Source stepping: every source ramped up from zero in 20 steps.
-        x = [0.0; MAX_UNKNOWNS];
-        for jn in j.iter_mut() {
-            *jn = Junctions { vbe: 0.0, vbc: 0.0 };
-        }
-        let mut steps = (1..=20).map(|k| (k as f64 / 20.0, 0.0));
-        if ramp(&mut x, &mut j, &mut steps) {
-            solved = Some(());
+            break;
         }
     }
     if solved.is_none() {
@@ -433,6 +457,50 @@ pub fn solve_dc(net: &Netlist) -> Result<DcSolution> {
 mod tests {
     use super::*;
     use crate::circuit::netlist::{Netlist, GROUND};
+
+    #[test]
+    fn each_continuation_reaches_the_same_operating_point() {
+        // gmin stepping and source stepping alone (the fallbacks when plain
+        // Newton fails) end where plain Newton does, for the example stage
+        // in each configuration and polarity: to 1e-9 of the supply (both
+        // stop at steps of 1e-11 of the unknowns).
+        use crate::circuit::stages::dc_netlist;
+        use crate::stage::{Stage, StageKind};
+        for kind in [
+            StageKind::CommonEmitter,
+            StageKind::CommonCollector,
+            StageKind::CommonBase,
+        ] {
+            for pnp in [false, true] {
+                let mut s = Stage::example();
+                s.kind = kind;
+                if kind != StageKind::CommonEmitter {
+                    s.parts.re += s.parts.re_bypassed;
+                    s.parts.re_bypassed = 0.0;
+                    s.parts.c_emitter = None;
+                }
+                if pnp {
+                    s.transistor.polarity = Polarity::Pnp;
+                }
+                let d = s.transistor.device(s.ambient, s.transistor.hfe, 0.0);
+                let (net, _) = dc_netlist(&s, &d);
+                let plain = solve_with(&net, &[Method::Newton]).expect("plain Newton");
+                for m in [Method::GminStepping, Method::SourceStepping] {
+                    let other = solve_with(&net, &[m]).unwrap_or_else(|e| panic!("{m:?}: {e}"));
+                    for (a, b) in plain.voltages.iter().zip(&other.voltages) {
+                        assert!(
+                            (a - b).abs() <= 1e-9 * s.supply,
+                            "{kind:?} pnp {pnp} {m:?}: {a} vs {b}"
+                        );
+                    }
+                    assert!(
+                        other.iterations > plain.iterations,
+                        "{m:?} takes more steps"
+                    );
+                }
+            }
+        }
+    }
 
     #[test]
     fn a_divider_and_a_short_solve_by_ohms_law() {
