@@ -177,6 +177,21 @@ test("views: the same seed gives the command line's Monte Carlo", async () => {
         assert.deepEqual(diffs, [], `${name}: ${key} differs from check --json:\n${diffs.slice(0, 10).join("\n")}`);
       }
     }
+    // The histogram's bins as CSV: every completed trial in one bin (a
+    // trial outside the histogram's range would be a bug of the bins).
+    const hist = await page.evaluate(() => {
+      const el = document.querySelector("stagewright-calc");
+      return { csv: el.plotCsv("histogram"), completed: el.toleranceResult.summary.completed };
+    });
+    const lines = hist.csv.trim().split("\r\n");
+    assert.match(lines[0], /^\w+ from( \(.+\))?,\w+ to( \(.+\))?,trials$/);
+    const counted = lines.slice(1).reduce((sum, l) => sum + Number(l.split(",")[2]), 0);
+    assert.equal(counted, hist.completed, "the bins hold every trial");
+    const [png] = await Promise.all([
+      page.waitForEvent("download"),
+      page.locator("stagewright-calc figure[data-plot=histogram] [data-action=plot-png]").click(),
+    ]);
+    assert.match(png.suggestedFilename(), /-histogram\.png$/);
     await page.evaluate(() => window.scrollTo(0, 0));
     await page.screenshot({ path: path.join(artifacts, "views-tolerances.png"), fullPage: true });
     await page.evaluate(() => document.querySelector("stagewright-calc").shadowRoot.querySelector(".hist-box").scrollIntoView());

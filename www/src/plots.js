@@ -304,10 +304,13 @@ export const withPlots = (Base) => class extends Base {
     p.line.style.height = `${p.canvas.clientHeight}px`;
   }
 
-  /** Saves a plot ("gain", "impedance", "loadlines") as a PNG image of
+  /** Saves a plot ("gain", "impedance", "loadlines", or the tolerance
+   * view's "histogram") as a PNG image of
    * its canvas or its numbers as CSV; returns the CSV text (or null). */
   exportPlot(key, kind) {
-    const p = this._plotParts && this._plotParts[key];
+    const p = key === "histogram"
+      ? (this._histogramCanvas && this._histogramCanvas() ? { canvas: this._histogramCanvas() } : null)
+      : this._plotParts && this._plotParts[key];
     if (!p) return null;
     const name = `${this._slug()}-${key}`;
     if (kind === "png") {
@@ -328,6 +331,7 @@ export const withPlots = (Base) => class extends Base {
   /** A plot's numbers as CSV (RFC 4180: a header row, comma-separated,
    * fields quoted where needed), SI units in the header, full precision. */
   plotCsv(key) {
+    if (key === "histogram") return this._histogramCsv ? this._histogramCsv() : null;
     const spec = this._specs && this._specs[key];
     if (!spec) return null;
     const q = (s) => (/[",\n]/.test(s) ? `"${s.replace(/"/g, '""')}"` : s);

@@ -41,8 +41,13 @@ export const withToleranceView = (Base) => class extends Base {
     this._tolHistPick = h("select", { id: id("tol-hist"), "aria-label": "result shown in the histogram" });
     this._tolHistPick.addEventListener("change", () => this._drawHistogram());
     this._tolHistTable = h("div", { class: "table-wrap" });
-    this._tolHistBox = h("figure", { class: "hist-box", hidden: true },
-      h("figcaption", null, h("label", { for: id("tol-hist") }, "Histogram of "), this._tolHistPick),
+    const png = h("button", { type: "button", class: "small", "data-action": "plot-png", title: "Save the histogram as a PNG image" }, "PNG");
+    const csv = h("button", { type: "button", class: "small", "data-action": "plot-csv", title: "Save the histogram's bins as CSV" }, "CSV");
+    png.addEventListener("click", () => this.exportPlot("histogram", "png"));
+    csv.addEventListener("click", () => this.exportPlot("histogram", "csv"));
+    this._tolHistBox = h("figure", { class: "hist-box", hidden: true, "data-plot": "histogram" },
+      h("figcaption", null, h("label", { for: id("tol-hist") }, "Histogram of "), this._tolHistPick,
+        h("span", { class: "plot-tools" }, png, csv)),
       this._tolHist, h("details", { class: "plot-numbers" }, h("summary", null, "Show numbers"), this._tolHistTable));
     // The tolerance box: the design file's tolerances block, edited here.
     this._boxInputs = {};
@@ -77,6 +82,28 @@ export const withToleranceView = (Base) => class extends Base {
   _quantityUnit(key) {
     const q = this._tables && this._tables.quantities.find((x) => x.key === key);
     return q ? q.unit : "";
+  }
+
+  /** The histogram's canvas (for exportPlot). */
+  _histogramCanvas() {
+    return this._tolHist || null;
+  }
+
+  /** The histogram on screen as CSV: one row per bin, its ends in the
+   * result's unit and its count of trials. */
+  _histogramCsv() {
+    const s = this._tolSummary;
+    const d = s && this._tolHistPick && s.distributions.find((x) => x.quantity === this._tolHistPick.value);
+    if (!d) return null;
+    const unit = this._quantityUnit(d.quantity);
+    const u = unit ? ` (${unit})` : "";
+    const bins = d.histogram.counts.length;
+    const width = (d.histogram.to - d.histogram.from) / bins;
+    const rows = [`${d.quantity} from${u},${d.quantity} to${u},trials`];
+    d.histogram.counts.forEach((n, i) => {
+      rows.push(`${d.histogram.from + i * width},${d.histogram.from + (i + 1) * width},${n}`);
+    });
+    return rows.join("\r\n") + "\r\n";
   }
 
   /** The box's fields from the design's tolerances block. */
