@@ -192,6 +192,13 @@ test("views: the same seed gives the command line's Monte Carlo", async () => {
       page.locator("stagewright-calc figure[data-plot=histogram] [data-action=plot-png]").click(),
     ]);
     assert.match(png.suggestedFilename(), /-histogram\.png$/);
+    // The readout under the pointer names the bin and its trials.
+    const histCanvas = page.locator("stagewright-calc figure[data-plot=histogram] canvas");
+    await histCanvas.scrollIntoViewIfNeeded();
+    const hb = await histCanvas.boundingBox();
+    await page.mouse.move(hb.x + hb.width * 0.5, hb.y + hb.height * 0.5);
+    assert.match(await page.locator("stagewright-calc figure[data-plot=histogram] .cursor-readout").textContent(),
+      / · (bin .+ to .+: \d+ trials|outside the trials)$/);
     await page.evaluate(() => window.scrollTo(0, 0));
     await page.screenshot({ path: path.join(artifacts, "views-tolerances.png"), fullPage: true });
     await page.evaluate(() => document.querySelector("stagewright-calc").shadowRoot.querySelector(".hist-box").scrollIntoView());

@@ -21,6 +21,9 @@ function yieldText(y) {
   return y >= 1 ? "100 %" : `${(Math.floor(y * 1e4) / 100).toFixed(2)} %`;
 }
 
+/** The histogram's readout while the pointer is elsewhere. */
+const HIST_HINT = "Point at the histogram to read its bins.";
+
 /** The view's methods; views/index.js mixes them into the element. */
 export const withToleranceView = (Base) => class extends Base {
   _buildToleranceView() {
@@ -45,10 +48,19 @@ export const withToleranceView = (Base) => class extends Base {
     const csv = h("button", { type: "button", class: "small", "data-action": "plot-csv", title: "Save the histogram's bins as CSV" }, "CSV");
     png.addEventListener("click", () => this.exportPlot("histogram", "png"));
     csv.addEventListener("click", () => this.exportPlot("histogram", "csv"));
+    // The value under the pointer and its bin, as on the other plots.
+    this._tolHistLine = h("div", { class: "cursor-line", hidden: true, "aria-hidden": "true" });
+    this._tolHistReadout = h("output", { class: "cursor-readout" }, HIST_HINT);
+    this._tolHist.addEventListener("pointermove", (e) => this._histogramCursor(e));
+    this._tolHist.addEventListener("pointerleave", () => {
+      this._tolHistLine.hidden = true;
+      this._tolHistReadout.textContent = HIST_HINT;
+    });
     this._tolHistBox = h("figure", { class: "hist-box", hidden: true, "data-plot": "histogram" },
       h("figcaption", null, h("label", { for: id("tol-hist") }, "Histogram of "), this._tolHistPick,
         h("span", { class: "plot-tools" }, png, csv)),
-      this._tolHist, h("details", { class: "plot-numbers" }, h("summary", null, "Show numbers"), this._tolHistTable));
+      h("div", { class: "plot-stack" }, this._tolHist, this._tolHistLine, this._tolHistReadout),
+      h("details", { class: "plot-numbers" }, h("summary", null, "Show numbers"), this._tolHistTable));
     // The tolerance box: the design file's tolerances block, edited here.
     this._boxInputs = {};
     this._boxErrors = {};
@@ -82,6 +94,32 @@ export const withToleranceView = (Base) => class extends Base {
   _quantityUnit(key) {
     const q = this._tables && this._tables.quantities.find((x) => x.key === key);
     return q ? q.unit : "";
+  }
+
+  /** The readout under the histogram: the value under the pointer, and
+   * the bin it falls in with its count of trials. */
+  _histogramCursor(e) {
+    const api = this._api;
+    const s = this._tolSummary;
+    const d = s && s.distributions.find((x) => x.quantity === this._tolHistPick.value);
+    const v = api && d ? this._plotValueAt({ frame: this._tolHistFrame, canvas: this._tolHist }, e) : null;
+    if (!v) {
+      this._tolHistLine.hidden = true;
+      this._tolHistReadout.textContent = HIST_HINT;
+      return;
+    }
+    const unit = this._quantityUnit(d.quantity);
+    const f = (x) => api.format_si(x, unit);
+    const bins = d.histogram.counts.length;
+    const width = (d.histogram.to - d.histogram.from) / bins;
+    const i = Math.floor((v.x - d.histogram.from) / width);
+    const bin = i >= 0 && i < bins
+      ? ` · bin ${f(d.histogram.from + i * width)} to ${f(d.histogram.from + (i + 1) * width)}: ${d.histogram.counts[i]} trials`
+      : " · outside the trials";
+    this._tolHistReadout.textContent = `${f(v.x)}${bin}`;
+    this._tolHistLine.hidden = false;
+    this._tolHistLine.style.left = `${v.cssX}px`;
+    this._tolHistLine.style.height = `${this._tolHist.clientHeight}px`;
   }
 
   /** The histogram's canvas (for exportPlot). */
@@ -365,7 +403,7 @@ export const withToleranceView = (Base) => class extends Base {
     const c = this._tolHist;
     const pad = width > 0 ? width : Math.abs(d.histogram.from) * 0.01 || 1;
     try {
-      api.plot_xy(c, {
+      this._tolHistFrame = api.plot_xy(c, {
         curves: [{ name: d.quantity.replace(/_/g, " "), x: new Float64Array(x), y: new Float64Array(y), color: t.traces[0], width: 2 }],
         markers: [
           { x: d.p1, y: 0, label: "p1", color: t.marker, shape: "cross" },
