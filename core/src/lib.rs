@@ -114,7 +114,8 @@ mod value;
 
 pub use analysis::{analyze, analyze_with, Analysis, Options};
 pub use circuit::{
-    dc_netlist, solve_dc, DcSolution, Element, Netlist, Node, StageNodes, GROUND, MAX_UNKNOWNS,
+    ac_netlist, dc_netlist, solve_ac, solve_dc, AcNodes, AcSolution, DcSolution, Element, Netlist,
+    Node, StageNodes, GROUND, MAX_UNKNOWNS,
 };
 pub use constants::{
     thermal_voltage, Temperature, BOLTZMANN, DATASHEET_TEMPERATURE, ELEMENTARY_CHARGE, ZERO_CELSIUS,

@@ -528,6 +528,34 @@ const COVERAGE: &[(&str, Covered)] = &[
         Reference("textbook", "circuit_engine_meets_the_divider_bias_examples"),
     ),
     (
+        "solve_ac",
+        Unit(
+            "circuit_stages",
+            "an_rc_low_pass_is_one_over_one_plus_j_omega_rc",
+        ),
+    ),
+    (
+        "AcSolution",
+        Unit(
+            "circuit_stages",
+            "an_rc_low_pass_is_one_over_one_plus_j_omega_rc",
+        ),
+    ),
+    (
+        "ac_netlist",
+        Unit(
+            "circuit_stages",
+            "the_example_stages_small_signal_netlists_give_the_stage_network",
+        ),
+    ),
+    (
+        "AcNodes",
+        Unit(
+            "circuit_stages",
+            "the_example_stages_small_signal_netlists_give_the_stage_network",
+        ),
+    ),
+    (
         "SpecField",
         Unit(
             "fields",
@@ -662,6 +690,10 @@ const CORE_MODULES: &[(&str, &str)] = &[
     ("synthesis", include_str!("../../core/src/synthesis/mod.rs")),
     ("tolerance", include_str!("../../core/src/tolerance/mod.rs")),
     ("fields", include_str!("../../core/src/fields.rs")),
+    (
+        "circuit_stages",
+        include_str!("../../core/src/circuit/stages.rs"),
+    ),
 ];
 
 /// The names of every `pub use` item of `lib`: `pub use a::{B, c};` and

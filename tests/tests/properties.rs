@@ -29,11 +29,12 @@
 //! a file that dirties the tree. `scripts/explore.sh` runs many fresh seeds
 //! with larger case counts, outside CI.
 
+use num_complex::Complex64;
 use proptest::prelude::*;
 use proptest::test_runner::RngSeed;
 use stagewright::{
-    analyze, analyze_with, dc_netlist, parse_value, preset, solve_dc, Analysis, Options, Parts,
-    Polarity, Stage, StageKind, Temperature,
+    ac_netlist, analyze, analyze_with, dc_netlist, parse_value, preset, solve_ac, solve_dc,
+    AcNetwork, Analysis, Band, Options, Parts, Polarity, Stage, StageKind, Temperature,
 };
 
 /// The seed of CI runs (any fixed number; this is the date it was chosen).
@@ -456,5 +457,51 @@ proptest! {
         prop_assert!(close_v(v(nodes.base), op.vb), "vb {} vs {} for {s:?}", v(nodes.base), op.vb);
         prop_assert!(close_v(v(nodes.emitter), op.ve), "ve {} vs {} for {s:?}", v(nodes.emitter), op.ve);
         prop_assert!(close_v(v(nodes.collector), op.vc), "vc {} vs {} for {s:?}", v(nodes.collector), op.vc);
+    }
+}
+
+proptest! {
+    #![proptest_config(config(512))]
+
+    #[test]
+    fn circuit_engine_ac_agrees_with_the_stage_network(s in stage()) {
+        // The general engine's small-signal solve of the stage's netlist
+        // must give the stage-specific nodal network's response: the
+        // terminal voltage gain V(out)/V(in) and the gain from the EMF
+        // V(out), at four frequencies, with every capacitor and at midband.
+        //
+        // Bound: 1e-5 relative, plus 1e-11 V per volt of EMF for a response
+        // that is nearly zero (a blocked frequency, a cut-off transistor).
+        // Not issue 10's 1e-9: these random networks are ill-conditioned
+        // (megohms beside a few ohms, picofarads at 10 MHz: admittances over
+        // twelve decades), and their answer is fixed only to about ε·cond by
+        // the part values themselves. Stamping the same conductances in
+        // another order moves it that much: the engine's own solutions with
+        // and without refinement differ by as much as the engine and the
+        // stage network do (up to a few 1e-6 of the imaginary part of a
+        // follower's response at 10 MHz, seen over 5 seeds × 4096 cases).
+        // A wrong stamp would be off by far more. The well-conditioned example stages
+        // agree to 1e-9 (the unit tests of `circuit::stages`).
+        const TOL: f64 = 1e-5;
+        let Ok(a) = analyze(&s) else { return Ok(()); };
+        let ss = &a.small_signal;
+        for band in [Band::Full, Band::Midband] {
+            let Ok(reference) = AcNetwork::new(&s, ss, band) else { continue; };
+            let (net, nodes) = ac_netlist(&s, ss, band);
+            for f in [10.0, 1e3, 1e5, 1e7] {
+                let Ok(want) = reference.solve(f) else { continue; };
+                let got = solve_ac(&net, f);
+                prop_assert!(got.is_ok(), "{band:?} at {f} Hz: {got:?} for {s:?}");
+                let got = got.unwrap();
+                let v_out = got.voltages[nodes.output.0];
+                let v_in = got.voltages[nodes.input.0];
+                let close = |x: Complex64, y: Complex64, size: f64| (x - y).norm() <= TOL * x.norm().max(y.norm()) + 1e-11 * size;
+                prop_assert!(close(v_out, want.voltage_gain_from_source, 1.0), "{band:?} {f} Hz: gain from the EMF {v_out} vs {} for {s:?}", want.voltage_gain_from_source);
+                if v_in.norm() > 1e-9 {
+                    let av = v_out / v_in;
+                    prop_assert!(close(av, want.voltage_gain, 1.0 / v_in.norm()), "{band:?} {f} Hz: voltage gain {av} vs {} for {s:?}", want.voltage_gain);
+                }
+            }
+        }
     }
 }

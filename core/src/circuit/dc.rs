@@ -40,14 +40,14 @@ pub struct DcSolution {
 
 /// The netlist numbered for the solve: shorts merged, an unknown per node
 /// class but ground's and per voltage source.
-struct Numbered<'a> {
+pub(super) struct Numbered<'a> {
     net: &'a Netlist,
     /// The unknown of each node's class (`None` for ground).
-    index: Vec<Option<usize>>,
+    pub(super) index: Vec<Option<usize>>,
     /// The first voltage-source unknown.
-    first_source: usize,
+    pub(super) first_source: usize,
     /// The number of unknowns.
-    n: usize,
+    pub(super) n: usize,
 }
 
 fn find(parent: &mut [usize], mut i: usize) -> usize {
@@ -59,7 +59,7 @@ fn find(parent: &mut [usize], mut i: usize) -> usize {
 }
 
 impl<'a> Numbered<'a> {
-    fn new(net: &'a Netlist) -> Result<Numbered<'a>> {
+    pub(super) fn new(net: &'a Netlist) -> Result<Numbered<'a>> {
         let nodes = net.nodes();
         let mut parent: Vec<usize> = (0..nodes).collect();
         for e in net.elements() {
@@ -73,12 +73,35 @@ impl<'a> Numbered<'a> {
             }
         }
         let ground = find(&mut parent, 0);
+        // A node no element touches has no unknown (it would make the
+        // matrix singular); it reads as 0 V.
+        let mut touched = vec![false; nodes];
+        for e in net.elements() {
+            let ends: [usize; 4] = match *e {
+                Element::Resistor { a, b, .. } | Element::Capacitor { a, b, .. } => {
+                    [a.0, b.0, 0, 0]
+                }
+                Element::VoltageSource { plus, minus, .. } => [plus.0, minus.0, 0, 0],
+                Element::CurrentSource { from, to, .. } => [from.0, to.0, 0, 0],
+                Element::Vccs {
+                    from,
+                    to,
+                    plus,
+                    minus,
+                    ..
+                } => [from.0, to.0, plus.0, minus.0],
+                Element::Bjt { c, b, e, .. } => [c.0, b.0, e.0, 0],
+            };
+            for n in ends {
+                touched[n] = true;
+            }
+        }
         let mut class_index: Vec<Option<usize>> = vec![None; nodes];
         let mut index = vec![None; nodes];
         let mut next = 0;
         for (i, slot) in index.iter_mut().enumerate() {
             let r = find(&mut parent, i);
-            if r == ground {
+            if r == ground || !touched[i] {
                 continue;
             }
             if class_index[r].is_none() {
@@ -111,6 +134,30 @@ impl<'a> Numbered<'a> {
             first_source: next,
             n,
         })
+    }
+
+    /// Stamps a transconductance `g`·(V(plus) − V(minus)) leaving `from`
+    /// and entering `to` into the matrix `a` (of any scalar).
+    pub(super) fn stamp_vccs<T>(
+        &self,
+        a: &mut [[T; MAX_UNKNOWNS]; MAX_UNKNOWNS],
+        from: Node,
+        to: Node,
+        plus: Node,
+        minus: Node,
+        g: f64,
+    ) where
+        T: core::ops::AddAssign<f64> + core::ops::SubAssign<f64>,
+    {
+        for (row, sign) in [(self.index[from.0], 1.0), (self.index[to.0], -1.0)] {
+            let Some(r) = row else { continue };
+            if let Some(c) = self.index[plus.0] {
+                a[r][c] += sign * g;
+            }
+            if let Some(c) = self.index[minus.0] {
+                a[r][c] -= sign * g;
+            }
+        }
     }
 
     fn v(&self, x: &[f64; MAX_UNKNOWNS], node: usize) -> f64 {
@@ -191,6 +238,13 @@ fn newton(
                     lin.b[i] += amps * scale;
                 }
             }
+            Element::Vccs {
+                from,
+                to,
+                plus,
+                minus,
+                siemens,
+            } => num.stamp_vccs(&mut lin.a, from, to, plus, minus, siemens),
             _ => {}
         }
     }
@@ -300,6 +354,20 @@ fn kcl_holds(num: &Numbered<'_>, x: &[f64; MAX_UNKNOWNS], scale: f64, gmin: f64)
             Element::CurrentSource { from, to, amps } => {
                 add(from.0, amps * scale, 0.0);
                 add(to.0, -amps * scale, 0.0);
+            }
+            Element::Vccs {
+                from,
+                to,
+                plus,
+                minus,
+                siemens,
+            } => {
+                let (vp, vm) = (num.v(x, plus.0), num.v(x, minus.0));
+                let i = siemens * (vp - vm);
+                let rounding =
+                    eps * libm::fabs(siemens) * libm::fmax(libm::fabs(vp), libm::fabs(vm));
+                add(from.0, i, rounding);
+                add(to.0, -i, rounding);
             }
             Element::Bjt {
                 c,

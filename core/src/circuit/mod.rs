@@ -37,20 +37,29 @@
 //! Small and dense: at most [`MAX_UNKNOWNS`] unknowns, on the stack, LU
 //! with partial pivoting. No allocation inside the Newton loop.
 //!
+//! # AC
+//! The same netlist, linear (each transistor as its hybrid-π model:
+//! resistors, capacitors and transconductances), one complex solve per
+//! frequency ([`solve_ac`]).
+//!
 //! This is the engine's first step: the stages' DC netlists
 //! ([`dc_netlist`]) solve to the operating point of
-//! [`crate::OperatingPoint::solve`] (a test holds them together to 1e-9);
-//! the AC, transient and steady-state analyses follow on the same netlist.
+//! [`crate::OperatingPoint::solve`], and their small-signal netlists
+//! ([`ac_netlist`]) to the response of [`crate::AcNetwork`] (tests hold
+//! them together to 1e-9); the analyses move onto it next, then the
+//! transient and the steady state.
 
+mod ac;
 mod dc;
 mod dense;
 mod netlist;
 mod stages;
 
+pub use ac::{solve_ac, AcSolution};
 pub use dc::{solve_dc, DcSolution};
 pub use dense::MAX_UNKNOWNS;
 pub use netlist::{Element, Netlist, Node, GROUND};
-pub use stages::{dc_netlist, StageNodes};
+pub use stages::{ac_netlist, dc_netlist, AcNodes, StageNodes};
 
 #[cfg(doc)]
 use crate::transistor::Device;

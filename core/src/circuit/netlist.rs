@@ -52,6 +52,21 @@ pub enum Element {
         /// Its DC value, A.
         amps: f64,
     },
+    /// A voltage-controlled current source: `siemens`·(V(plus) − V(minus))
+    /// leaves the circuit at `from` and comes back at `to` (a
+    /// transconductance of a small-signal model).
+    Vccs {
+        /// Where the current leaves the circuit.
+        from: Node,
+        /// Where it comes back.
+        to: Node,
+        /// The controlling voltage's positive node.
+        plus: Node,
+        /// Its negative node.
+        minus: Node,
+        /// Transconductance, S.
+        siemens: f64,
+    },
     /// A bipolar transistor: the Ebers–Moll transport model of `device`
     /// between the collector, the internal base and the emitter (rbb' is a
     /// resistor of the netlist).
