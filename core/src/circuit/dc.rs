@@ -23,6 +23,8 @@ const STEP_REL: f64 = 1e-11;
 /// And when Kirchhoff's current law holds at every node to this, A, plus
 /// the relative part below.
 const KCL_ABS: f64 = 1e-15;
+/// Newton steps (V) below which the linear solves are refined.
+const REFINE_BELOW: f64 = 1e-6;
 /// The relative part of the KCL test: of the largest current at the node.
 const KCL_REL: f64 = 1e-9;
 
@@ -251,6 +253,7 @@ fn newton(
     for i in 0..num.first_source {
         lin.a[i][i] += gmin;
     }
+    let mut last_step = f64::INFINITY;
     for it in 1..=MAX_ITERATIONS {
         let mut sys = lin;
         for (t, (c, b, em, device, polarity)) in transistors(num.net).enumerate() {
@@ -289,7 +292,11 @@ fn newton(
                 sys.b[r] -= i_eq;
             }
         }
-        let new = sys.solve()?;
+        // Far from the answer a plain LU step does (Newton corrects it
+        // anyway); near it, the refined one, whose digits the convergence
+        // test below asks for.
+        let refine = last_step < REFINE_BELOW;
+        let new = sys.solve_refined(if refine { 2 } else { 0 })?;
         // The new junction voltages, limited.
         let mut limited = false;
         for (t, (c, b, em, device, polarity)) in transistors(num.net).enumerate() {
@@ -310,7 +317,12 @@ fn newton(
             size = size.max(libm::fabs(new[i]));
         }
         *x = new;
-        if !limited && step <= STEP_ABS + STEP_REL * size && kcl_holds(num, x, scale, gmin) {
+        last_step = step;
+        if refine
+            && !limited
+            && step <= STEP_ABS + STEP_REL * size
+            && kcl_holds(num, x, scale, gmin)
+        {
             return Some(it);
         }
     }
