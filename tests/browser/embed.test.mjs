@@ -225,7 +225,7 @@ describe("embedding dist/stagewright.js", () => {
     const before = await p.evaluate(() => document.querySelector("stagewright-calc").report);
     assert.ok(before && before.operating_point.region, "the engine computed under the policy");
     await input.fill("4k7");
-    await p.locator("stagewright-calc .field[data-key='rc'] .understood", { hasText: "4.7 kΩ" }).waitFor({ timeout: 2000 });
+    await p.locator("stagewright-calc .field[data-key='rc'] .understood", { hasText: "4.7 kΩ" }).waitFor({ timeout: 15000 });
     const after = await p.evaluate(() => document.querySelector("stagewright-calc").report);
     assert.notEqual(after.midband.voltage_gain, before.midband.voltage_gain, "and recomputed after the edit");
     const drawn = await p.evaluate(() =>

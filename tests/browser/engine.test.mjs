@@ -159,7 +159,7 @@ describe("the engine in the page", () => {
       document.querySelector("stagewright-calc").shadowRoot.querySelector('output[data-key="midband.voltage_gain"]').textContent);
     await page.locator("stagewright-calc .field[data-key='rc'] input").fill("4k7k");
     const error = page.locator("stagewright-calc .field[data-key='rc'] .error");
-    await error.waitFor({ state: "visible", timeout: 2000 });
+    await error.waitFor({ state: "visible", timeout: 15000 });
     assert.match(await error.textContent(), /\brc\b.*4k7k/);
     const state = await page.evaluate(() => {
       const el = document.querySelector("stagewright-calc");
@@ -177,12 +177,12 @@ describe("the engine in the page", () => {
     assert.match(state.notice, /rc/);
     // A value the parser reads but the engine refuses: the core's message.
     await page.locator("stagewright-calc .field[data-key='rc'] input").fill("-1k");
-    await page.locator("stagewright-calc .notice", { hasText: "Not computed" }).waitFor({ timeout: 2000 });
+    await page.locator("stagewright-calc .notice", { hasText: "Not computed" }).waitFor({ timeout: 15000 });
     const notice = await page.locator("stagewright-calc .notice").textContent();
     assert.match(notice, /parts\.rc must be/);
     assert.deepEqual(jsonDifferences(await page.evaluate(() => document.querySelector("stagewright-calc").report), good), []);
     await page.locator("stagewright-calc .field[data-key='rc'] input").fill("4k7");
-    await page.locator("stagewright-calc .notice").waitFor({ state: "hidden", timeout: 2000 });
+    await page.locator("stagewright-calc .notice").waitFor({ state: "hidden", timeout: 15000 });
   });
 
   test("broken design files give the command line's message, and the last good design stays", async () => {

@@ -177,7 +177,7 @@ describe("hostile designs through the page", () => {
           return e && !e.hidden && e.textContent;
         },
         field,
-        { timeout: 2000 },
+        { timeout: 15000 },
       );
       assert.equal(await shown.jsonValue(), expected, `${typed} in ${field}`);
     }
@@ -209,7 +209,7 @@ describe("hostile designs through the page", () => {
     await page.locator("stagewright-calc details.share > summary").click();
     await page.locator("stagewright-calc input[type=file]").setInputFiles(file);
     const banner = page.locator("stagewright-calc .banner");
-    await banner.waitFor({ state: "visible", timeout: 2000 });
+    await banner.waitFor({ state: "visible", timeout: 15000 });
     assert.equal(await banner.textContent(), `not-utf8.json: ${expected}`);
     const title = await page.evaluate(() => document.querySelector("stagewright-calc").design.title);
     assert.equal(title, good.title, "the last good design stays");

@@ -37,6 +37,11 @@ async function everyView(page, check) {
   await page.waitForFunction(() => document.querySelector("stagewright-calc").shadowRoot.querySelector(".design-box").open);
   await check("calculator, editor open");
   await page.locator("stagewright-calc .share > summary").click();
+  // Its snippets are written on the toggle event, a task after the click.
+  await page.waitForFunction(() => {
+    const t = document.querySelector("stagewright-calc").shadowRoot.querySelector("textarea.snippet");
+    return !!(t && t.value.length > 0);
+  }, null, { timeout: 15000 });
   await check("calculator, share open");
   await page.locator("stagewright-calc .share > summary").click();
   await page.locator("stagewright-calc [role=tab][data-view=requirements]").click();
@@ -232,6 +237,12 @@ describe("layout", () => {
       await source.goto(`${ORIGIN}/stagewright.html`);
       await waitReady(source);
       await source.locator("stagewright-calc .share > summary").click();
+      // The panel fills its snippets on the details' toggle event, a task
+      // after the click: wait for the frame recipe to be written.
+      await source.waitForFunction(() => {
+        const t = document.querySelector("stagewright-calc").shadowRoot.querySelectorAll("textarea.snippet")[1];
+        return !!(t && t.value.length > 0);
+      }, null, { timeout: 15000 });
       const recipe = await source.locator("stagewright-calc textarea.snippet").nth(1).inputValue();
       await source.close();
       assert.match(recipe, /<iframe class="stagewright" src="https:\/\/wiki\.example\/stagewright\.html#design=/, "the frame recipe points at the page it was written on");

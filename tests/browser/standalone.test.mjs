@@ -59,7 +59,7 @@ describe("standalone page from file://", () => {
     const input = field(page, "rc").locator("input");
     await input.fill("4k7");
     const understood = field(page, "rc").locator(".understood");
-    await assert.doesNotReject(understood.filter({ hasText: "4.7 kΩ" }).waitFor({ timeout: 2000 }));
+    await assert.doesNotReject(understood.filter({ hasText: "4.7 kΩ" }).waitFor({ timeout: 15000 }));
     assert.equal(await page.evaluate(() => document.querySelector("stagewright-calc").design.parts.rc), "4k7");
     // The diagram shows the same value.
     const onDiagram = await shadowText(page, '.schematic g[data-part="rc"] .pval');
@@ -71,7 +71,7 @@ describe("standalone page from file://", () => {
     const input = field(page, "rc").locator("input");
     await input.fill("4k7k");
     const error = field(page, "rc").locator(".error");
-    await error.waitFor({ state: "visible", timeout: 2000 });
+    await error.waitFor({ state: "visible", timeout: 15000 });
     const message = await error.textContent();
     assert.match(message, /\brc\b/, `message names the field: ${message}`);
     assert.match(message, /4k7k/);
@@ -83,18 +83,18 @@ describe("standalone page from file://", () => {
     await page.locator("stagewright-calc fieldset.group-parts").screenshot({ path: path.join(here, "artifacts", "invalid-entry.png") });
     // Fixing it clears the message.
     await input.fill("4k7");
-    await error.waitFor({ state: "hidden", timeout: 2000 });
+    await error.waitFor({ state: "hidden", timeout: 15000 });
   });
 
   test("the nearest standard value is one click away", async () => {
     const input = field(page, "rc").locator("input");
     await input.fill("4k6");
     const snap = field(page, "rc").locator("button.snap");
-    await snap.waitFor({ state: "visible", timeout: 2000 });
+    await snap.waitFor({ state: "visible", timeout: 15000 });
     assert.match(await snap.textContent(), /E24\s*4\.7 kΩ/);
     await snap.click();
     assert.equal(await input.inputValue(), "4.7k");
-    await field(page, "rc").locator(".std").waitFor({ state: "visible", timeout: 2000 });
+    await field(page, "rc").locator(".std").waitFor({ state: "visible", timeout: 15000 });
   });
 
   test("choosing a part on the diagram focuses its input, by mouse and by keyboard", async () => {
@@ -112,7 +112,7 @@ describe("standalone page from file://", () => {
 
   test("the design follows in the address fragment", async () => {
     await field(page, "r1").locator("input").fill("56k");
-    await page.waitForFunction(() => location.hash.startsWith("#design="), null, { timeout: 2000 });
+    await page.waitForFunction(() => location.hash.startsWith("#design="), null, { timeout: 15000 });
     await page.waitForTimeout(400);
     const design = await page.evaluate(() => {
       const b64 = location.hash.slice("#design=".length).replace(/-/g, "+").replace(/_/g, "/");
@@ -148,7 +148,7 @@ describe("standalone page from file://", () => {
     assert.equal(info.h, Math.round(info.ch * info.dpr));
     assert.ok(info.colours > 3, "something was drawn");
     await page.locator('stagewright-calc figure[data-plot="gain"] summary').click();
-    await page.locator('stagewright-calc figure[data-plot="gain"] tbody tr').first().waitFor({ timeout: 2000 });
+    await page.locator('stagewright-calc figure[data-plot="gain"] tbody tr').first().waitFor({ timeout: 15000 });
     const rows = await page.locator('stagewright-calc figure[data-plot="gain"] tbody tr').count();
     assert.ok(rows >= 81, `a row per frequency, 20 a decade over four decades or more: ${rows}`);
     const firstFreq = await page.locator('stagewright-calc figure[data-plot="gain"] tbody tr th').first().textContent();
@@ -187,7 +187,7 @@ describe("standalone page, other looks", () => {
       await waitReport(page);
       // A supply above the extra-low-voltage limit: cautions, a failed rating.
       await field(page, "supply").locator("input").fill("70");
-      await page.locator("stagewright-calc section.cautions li").first().waitFor({ timeout: 2000 });
+      await page.locator("stagewright-calc section.cautions li").first().waitFor({ timeout: 15000 });
       const cautions = await page.evaluate(() => document.querySelector("stagewright-calc").report.cautions.map((c) => c.id));
       assert.ok(cautions.length > 0, "the design draws cautions");
       assert.equal(
