@@ -20,7 +20,7 @@ import { designText, encodeDesign } from "./codec.js";
 import { clone, getPath, ordered, own } from "./design.js";
 import { h, sv } from "./dom.js";
 import { shortText } from "./text.js";
-import { SWEEP_PER_DECADE, asFieldError, enginePresets, hasAnalysis, loadEngine, mark, runAnalysis } from "./engine.js";
+import { SWEEP_PER_DECADE, asFieldError, enginePresets, loadEngine, mark } from "./engine.js";
 import { withForm } from "./form.js";
 import { upgradePlaceholders, watchPlaceholders } from "./placeholders.js";
 import { withPlots } from "./plots.js";
@@ -321,7 +321,8 @@ export class StagewrightCalc extends withShare(withPlots(withResults(withDiagram
    * element's tags in paragraphs and so moved the script out of it, the
    * script that directly follows the element or its paragraph (empty
    * paragraphs between are skipped), alone or as the only content of the
-   * next paragraph. A script another element has taken is not taken again. */
+   * next paragraph. The element removes the script once read, so no other
+   * element takes it again. */
   _jsonScript() {
     const JSON_SCRIPT = 'script[type="application/json"]';
     const inside = this.querySelector(JSON_SCRIPT);
@@ -332,8 +333,6 @@ export class StagewrightCalc extends withShare(withPlots(withResults(withDiagram
     while (emptyP(n)) n = n.nextElementSibling;
     if (n && n.tagName === "P" && n.children.length === 1 && n.firstElementChild.matches(JSON_SCRIPT)) n = n.firstElementChild;
     if (!n || !n.matches(JSON_SCRIPT)) return null;
-    if (n.stagewrightOwner && n.stagewrightOwner !== this && n.stagewrightOwner.isConnected) return null;
-    n.stagewrightOwner = this;
     return n;
   }
 
@@ -785,7 +784,6 @@ export class StagewrightCalc extends withShare(withPlots(withResults(withDiagram
     const api = this._api;
     if (!api) return;
     this._clearAnalysisErrors();
-    if (!hasAnalysis(api)) return;
     let out;
     try {
       out = this._compute(design);
@@ -820,7 +818,6 @@ export class StagewrightCalc extends withShare(withPlots(withResults(withDiagram
    * the session was not told of. */
   _compute(design) {
     const api = this._api;
-    if (typeof api.Session !== "function") return runAnalysis(api, design);
     if (!this._session || this._sessionStale) {
       this._dropSession();
       this._session = new api.Session(JSON.stringify(design));

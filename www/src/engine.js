@@ -70,8 +70,10 @@ export function loadEngine() {
 /* ---- The analysis ------------------------------------------------
  * The wasm exports (see wasm/src/analysis.rs):
  *
- *   api.compute(designJson: string, pointsPerDecade: number) ->
- *       {report, sweep, curves}: one analysis, everything the page shows.
+ *   new api.Session(designJson) holds a design; session.set(path, text,
+ *       series) takes one field; session.compute(pointsPerDecade) ->
+ *       {report, sweep, curves}: one analysis, everything the page shows
+ *       (also api.compute(designJson, pointsPerDecade), for scripts).
  *   api.analyze(designJson: string) -> report object, the very document of
  *       `stagewright analyze FILE --json`; throws {field, message}.
  *   compute(…).sweep: {freq, voltage_gain_db, voltage_gain_from_source_db,
@@ -85,16 +87,6 @@ export function loadEngine() {
 
 /** Points a decade of the plotted sweep. */
 export const SWEEP_PER_DECADE = 20;
-
-export function hasAnalysis(api) {
-  return !!api && typeof api.compute === "function";
-}
-
-/** Runs the analysis of `design` once. Returns {report, sweep, curves} or
- * null when the engine has no analysis; throws {field, message}. */
-export function runAnalysis(api, design) {
-  return hasAnalysis(api) ? api.compute(JSON.stringify(design), SWEEP_PER_DECADE) : null;
-}
 
 export function enginePresets(api) {
   if (api && typeof api.presets === "function") {

@@ -111,6 +111,16 @@ impl Netlist {
         self.elements.push(e);
     }
 
+    /// Adds a resistor of `ohms` between `a` and `b` (0 Ω: a short).
+    pub fn resistor(&mut self, a: Node, b: Node, ohms: f64) {
+        self.add(Element::Resistor { a, b, ohms });
+    }
+
+    /// Adds a capacitor of `farads` between `a` and `b`.
+    pub fn capacitor(&mut self, a: Node, b: Node, farads: f64) {
+        self.add(Element::Capacitor { a, b, farads });
+    }
+
     /// The number of nodes, ground included.
     pub fn nodes(&self) -> usize {
         self.nodes

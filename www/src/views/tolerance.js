@@ -172,7 +172,7 @@ export const withToleranceView = (Base) => class extends Base {
       } catch (err) {
         const e = asFieldError(err);
         // Only this field's message: the calculator view shows the others.
-        if (e.field === `tolerances.${key}` || e.field.startsWith("tolerances")) message = e.message;
+        if (e.field.startsWith("tolerances")) message = e.message;
       }
     }
     error.textContent = message;
