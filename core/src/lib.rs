@@ -91,6 +91,7 @@ mod fields;
 mod figures;
 mod format;
 mod hybrid_pi;
+mod large_signal;
 mod load_line;
 mod midband;
 mod nodal;
@@ -114,8 +115,10 @@ mod value;
 
 pub use analysis::{analyze, analyze_with, Analysis, Options};
 pub use circuit::{
-    ac_netlist, dc_netlist, solve_ac, solve_dc, AcNodes, AcSolution, DcSolution, Element, Netlist,
-    Node, StageNodes, GROUND, MAX_UNKNOWNS,
+    ac_netlist, collector_junction, dc_netlist, periodic_steady_state, solve_ac, solve_dc,
+    stage_netlist, transient, AcNodes, AcSolution, Charges, DcSolution, Depletion, Element,
+    Netlist, Node, Periodic, SignalNodes, StageNodes, TransientOptions, TransientRun,
+    FORWARD_COEFFICIENT, GROUND, MAX_UNKNOWNS,
 };
 pub use constants::{
     thermal_voltage, Temperature, BOLTZMANN, DATASHEET_TEMPERATURE, ELEMENTARY_CHARGE, ZERO_CELSIUS,
@@ -138,6 +141,10 @@ pub use fields::{field, Family, Field, FieldKind, Group, SpecField, FIELDS, SPEC
 pub use figures::{Figure, Quantity, FIGURES};
 pub use format::{format_exact, format_si, format_value};
 pub use hybrid_pi::{SmallSignal, OPEN_RESISTANCE};
+pub use large_signal::{
+    harmonics, thd, Clip, Half, Harmonic, LargeSignal, LimitedSwing, Mechanism, ThdPoint, Waveform,
+    CURVE_POINTS, CURVE_SPAN, DEFAULT_FREQUENCY, DEFAULT_MAX_THD, HARMONICS, SAMPLES,
+};
 pub use load_line::{load_lines, Characteristic, LoadLines};
 pub use midband::Midband;
 pub use nodal::{AcNetwork, Band, FrequencyPoint};

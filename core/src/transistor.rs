@@ -227,25 +227,13 @@ impl TransistorData {
     ///
     /// Without `cob_vcb`, Cμ = Cob. With it, the junction law
     /// C = Cj0/(1 + VR/V0)^m is scaled so that C(cob_vcb) = Cob
-    /// (V0 = [`CJC_BUILT_IN`], m = [`CJC_GRADING`]).
+    /// (V0 = [`CJC_BUILT_IN`], m = [`CJC_GRADING`]); forward of half the
+    /// built-in potential it continues linearly, as
+    /// [`crate::circuit::Depletion`] describes.
     pub fn c_mu(&self, vcb: f64) -> f64 {
-        match self.cob_vcb {
-            None => self.cob,
-            Some(v_ref) => {
-                // A forward-biased junction (saturation) is clamped at half the built-in potential.
-                let vr = if vcb > -0.5 * CJC_BUILT_IN {
-                    vcb
-                } else {
-                    -0.5 * CJC_BUILT_IN
-                };
-                // formula: C(VR) = Cob·((1 + Vref/V0)/(1 + VR/V0))^m
-                self.cob
-                    * libm::pow(
-                        (1.0 + v_ref / CJC_BUILT_IN) / (1.0 + vr / CJC_BUILT_IN),
-                        CJC_GRADING,
-                    )
-            }
-        }
+        // The junction law of the transient's charge model, so that the
+        // two agree at every bias (forward of FC·V0 it continues linearly).
+        crate::circuit::collector_junction(self).at(-vcb).1
     }
 
     /// Ptot derated linearly above 25 °C to zero at Tj max, in watts, at
@@ -300,7 +288,7 @@ pub struct Currents {
 const EXP_LIMIT: f64 = 80.0;
 
 /// e^x and its derivative, continued linearly above [`EXP_LIMIT`].
-fn limexp(x: f64) -> (f64, f64) {
+pub(crate) fn limexp(x: f64) -> (f64, f64) {
     if x < EXP_LIMIT {
         let e = libm::exp(x);
         (e, e)

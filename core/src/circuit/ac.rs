@@ -16,7 +16,7 @@ use alloc::vec::Vec;
 
 use num_complex::Complex64;
 
-use super::dc::Numbered;
+use super::dc::{is_ideal, Numbered};
 use super::dense::MAX_UNKNOWNS;
 use super::netlist::{Element, Netlist};
 use crate::error::{Error, Result};
@@ -34,7 +34,8 @@ pub struct AcSolution {
 }
 
 /// Solves `net` at `frequency` hertz, every source at its value as an AC
-/// amplitude (phase 0).
+/// amplitude (phase 0): a voltage source at its value, a sine at its
+/// amplitude; an ideal (infinite) capacitor is a short.
 ///
 /// # Errors
 /// [`ErrorKind::Inconsistent`](crate::ErrorKind::Inconsistent) naming
@@ -42,7 +43,7 @@ pub struct AcSolution {
 /// with no path to ground); [`ErrorKind::OutOfRange`](crate::ErrorKind::OutOfRange)
 /// for more than [`MAX_UNKNOWNS`] unknowns.
 pub fn solve_ac(net: &Netlist, frequency: f64) -> Result<AcSolution> {
-    let num = Numbered::new(net)?;
+    let num = Numbered::new(net, true)?;
     let n = num.n;
     let w = 2.0 * core::f64::consts::PI * frequency.max(0.0);
     let zero = Complex64::new(0.0, 0.0);
@@ -64,16 +65,30 @@ pub fn solve_ac(net: &Netlist, frequency: f64) -> Result<AcSolution> {
         }
     };
     let mut k = num.first_source;
+    let mut ideal = num.first_ideal;
     for e in net.elements() {
         match *e {
             Element::Resistor { a: p, b: q, ohms } if ohms > 0.0 => {
                 two(&mut a, num.index[p.0], num.index[q.0], Complex64::new(1.0 / ohms, 0.0));
             }
             Element::Resistor { .. } => {}
+            // An ideal capacitor: a short, held by a 0 V source of its own.
+            Element::Capacitor { a: p, b: q, farads } if is_ideal(farads) => {
+                let one = Complex64::new(1.0, 0.0);
+                if let Some(i) = num.index[p.0] {
+                    a[i][ideal] += one;
+                    a[ideal][i] += one;
+                }
+                if let Some(i) = num.index[q.0] {
+                    a[i][ideal] -= one;
+                    a[ideal][i] -= one;
+                }
+                ideal += 1;
+            }
             Element::Capacitor { a: p, b: q, farads } => {
                 two(&mut a, num.index[p.0], num.index[q.0], Complex64::new(0.0, w * farads));
             }
-            Element::VoltageSource { plus, minus, volts } => {
+            Element::VoltageSource { plus, minus, .. } | Element::Sine { plus, minus, .. } => {
                 let one = Complex64::new(1.0, 0.0);
                 if let Some(i) = num.index[plus.0] {
                     a[i][k] += one;
@@ -83,6 +98,10 @@ pub fn solve_ac(net: &Netlist, frequency: f64) -> Result<AcSolution> {
                     a[i][k] -= one;
                     a[k][i] -= one;
                 }
+                let volts = match *e {
+                    Element::Sine { amplitude, .. } => amplitude,
+                    _ => super::dc::source_value(e, None),
+                };
                 b[k] = Complex64::new(volts, 0.0);
                 k += 1;
             }

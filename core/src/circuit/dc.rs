@@ -43,11 +43,15 @@ pub struct DcSolution {
 /// The netlist numbered for the solve: shorts merged, an unknown per node
 /// class but ground's and per voltage source.
 pub(super) struct Numbered<'a> {
-    net: &'a Netlist,
+    pub(super) net: &'a Netlist,
     /// The unknown of each node's class (`None` for ground).
     pub(super) index: Vec<Option<usize>>,
     /// The first voltage-source unknown.
     pub(super) first_source: usize,
+    /// The first unknown of an ideal capacitor's holding source (after
+    /// every voltage source; as many as there are infinite capacitors when
+    /// they are held, else `n`).
+    pub(super) first_ideal: usize,
     /// The number of unknowns.
     pub(super) n: usize,
 }
@@ -60,8 +64,16 @@ fn find(parent: &mut [usize], mut i: usize) -> usize {
     i
 }
 
+/// Whether a capacitor is ideal (infinite).
+pub(super) fn is_ideal(farads: f64) -> bool {
+    farads == f64::INFINITY
+}
+
 impl<'a> Numbered<'a> {
-    pub(super) fn new(net: &'a Netlist) -> Result<Numbered<'a>> {
+    /// Numbers `net`'s unknowns; with `hold_ideal`, each infinite
+    /// capacitor gets a voltage-source unknown of its own (the transient
+    /// holds it at its DC voltage, the small-signal solve at 0).
+    pub(super) fn new(net: &'a Netlist, hold_ideal: bool) -> Result<Numbered<'a>> {
         let nodes = net.nodes();
         let mut parent: Vec<usize> = (0..nodes).collect();
         for e in net.elements() {
@@ -83,7 +95,9 @@ impl<'a> Numbered<'a> {
                 Element::Resistor { a, b, .. } | Element::Capacitor { a, b, .. } => {
                     [a.0, b.0, 0, 0]
                 }
-                Element::VoltageSource { plus, minus, .. } => [plus.0, minus.0, 0, 0],
+                Element::VoltageSource { plus, minus, .. } | Element::Sine { plus, minus, .. } => {
+                    [plus.0, minus.0, 0, 0]
+                }
                 Element::CurrentSource { from, to, .. } => [from.0, to.0, 0, 0],
                 Element::Vccs {
                     from,
@@ -115,9 +129,17 @@ impl<'a> Numbered<'a> {
         let sources = net
             .elements()
             .iter()
-            .filter(|e| matches!(e, Element::VoltageSource { .. }))
+            .filter(|e| matches!(e, Element::VoltageSource { .. } | Element::Sine { .. }))
             .count();
-        let n = next + sources;
+        let ideal = if hold_ideal {
+            net.elements()
+                .iter()
+                .filter(|e| matches!(e, Element::Capacitor { farads, .. } if is_ideal(*farads)))
+                .count()
+        } else {
+            0
+        };
+        let n = next + sources + ideal;
         if n > MAX_UNKNOWNS {
             return Err(Error::new(
                 "netlist",
@@ -134,6 +156,7 @@ impl<'a> Numbered<'a> {
             net,
             index,
             first_source: next,
+            first_ideal: next + sources,
             n,
         })
     }
@@ -162,14 +185,16 @@ impl<'a> Numbered<'a> {
         }
     }
 
-    fn v(&self, x: &[f64; MAX_UNKNOWNS], node: usize) -> f64 {
+    pub(super) fn v(&self, x: &[f64; MAX_UNKNOWNS], node: usize) -> f64 {
         self.index[node].map_or(0.0, |i| x[i])
     }
 }
 
 /// The transistors of `net`, in order: collector, internal base, emitter,
 /// model, polarity.
-fn transistors(net: &Netlist) -> impl Iterator<Item = (Node, Node, Node, Device, Polarity)> + '_ {
+pub(super) fn transistors(
+    net: &Netlist,
+) -> impl Iterator<Item = (Node, Node, Node, Device, Polarity)> + '_ {
     net.elements().iter().filter_map(|e| match *e {
         Element::Bjt {
             c,
@@ -177,6 +202,7 @@ fn transistors(net: &Netlist) -> impl Iterator<Item = (Node, Node, Node, Device,
             e,
             device,
             polarity,
+            ..
         } => Some((c, b, e, device, polarity)),
         _ => None,
     })
@@ -185,24 +211,84 @@ fn transistors(net: &Netlist) -> impl Iterator<Item = (Node, Node, Node, Device,
 /// The state of each transistor's two junctions between iterations (in
 /// its NPN frame).
 #[derive(Debug, Clone, Copy)]
-struct Junctions {
-    vbe: f64,
-    vbc: f64,
+pub(super) struct Junctions {
+    pub(super) vbe: f64,
+    pub(super) vbc: f64,
 }
 
-/// One Newton attempt at source scale `scale` and node-to-ground
-/// conductance `gmin`, from `x` and the junction states `j`; returns the
-/// solution and its iterations, or `None`.
-fn newton(
+/// Stamps the Norton companion of a transistor at the junction voltages
+/// `jn` (its NPN frame) into `sys`.
+pub(super) fn stamp_transistor(
     num: &Numbered<'_>,
-    x: &mut [f64; MAX_UNKNOWNS],
+    sys: &mut Dense,
+    (c, b, em): (Node, Node, Node),
+    device: &Device,
+    polarity: Polarity,
+    jn: Junctions,
+) {
+    let s = polarity.sign();
+    let cur = device.currents(jn.vbe, jn.vbc);
+    // Norton companion in the real frame: the current into each
+    // terminal is s·(I0 + g·(v − v0)) with v = s·(node differences),
+    // so the conductances are the NPN frame's and the equivalent
+    // currents change sign with the polarity.
+    let ic_eq = s * (cur.ic - cur.dic_dvbe * jn.vbe - cur.dic_dvbc * jn.vbc);
+    let ib_eq = s * (cur.ib - cur.dib_dvbe * jn.vbe - cur.dib_dvbc * jn.vbc);
+    let rows = [
+        (num.index[c.0], cur.dic_dvbe, cur.dic_dvbc, ic_eq),
+        (num.index[b.0], cur.dib_dvbe, cur.dib_dvbc, ib_eq),
+        (
+            num.index[em.0],
+            -(cur.dic_dvbe + cur.dib_dvbe),
+            -(cur.dic_dvbc + cur.dib_dvbc),
+            -(ic_eq + ib_eq),
+        ),
+    ];
+    let (nb, ne, nc) = (num.index[b.0], num.index[em.0], num.index[c.0]);
+    for (row, g_be, g_bc, i_eq) in rows {
+        let Some(r) = row else { continue };
+        // i = g_be·(Vb − Ve) + g_bc·(Vb − Vc) + i_eq leaves the node.
+        if let Some(col) = nb {
+            sys.a[r][col] += g_be + g_bc;
+        }
+        if let Some(col) = ne {
+            sys.a[r][col] -= g_be;
+        }
+        if let Some(col) = nc {
+            sys.a[r][col] -= g_bc;
+        }
+        sys.b[r] -= i_eq;
+    }
+}
+
+/// The junction voltages of every transistor at `x`, each limited against
+/// its previous value in `j` (which it replaces); true when any was limited.
+pub(super) fn limit_transistors(
+    num: &Numbered<'_>,
+    x: &[f64; MAX_UNKNOWNS],
     j: &mut [Junctions],
-    scale: f64,
-    gmin: f64,
-) -> Option<u32> {
-    let n = num.n;
-    // The linear part, stamped once per attempt.
-    let mut lin = Dense::new(n);
+) -> bool {
+    let mut limited = false;
+    for (t, (c, b, em, device, polarity)) in transistors(num.net).enumerate() {
+        let s = polarity.sign();
+        let vb = num.v(x, b.0);
+        let vbe = s * (vb - num.v(x, em.0));
+        let vbc = s * (vb - num.v(x, c.0));
+        let vcrit = device.v_critical();
+        let (vbe, l1) = limit_junction(vbe, j[t].vbe, device.vt, vcrit);
+        let (vbc, l2) = limit_junction(vbc, j[t].vbc, device.vt, vcrit);
+        limited |= l1 || l2;
+        j[t] = Junctions { vbe, vbc };
+    }
+    limited
+}
+
+/// Stamps the linear part of the netlist into `lin`: resistors,
+/// transconductances, voltage sources (their incidence, and the value at
+/// source scale `scale` and time `t`: a sine's offset plus its value at
+/// `t` when `sine` is on) and current sources (scaled). Ideal capacitors'
+/// holding sources are left to the caller.
+pub(super) fn stamp_linear(num: &Numbered<'_>, lin: &mut Dense, scale: f64, t: Option<f64>) {
     let mut k = num.first_source;
     for e in num.net.elements() {
         match *e {
@@ -220,7 +306,7 @@ fn newton(
                     lin.a[m][i] -= g;
                 }
             }
-            Element::VoltageSource { plus, minus, volts } => {
+            Element::VoltageSource { plus, minus, .. } | Element::Sine { plus, minus, .. } => {
                 if let Some(i) = num.index[plus.0] {
                     lin.a[i][k] += 1.0;
                     lin.a[k][i] += 1.0;
@@ -229,7 +315,7 @@ fn newton(
                     lin.a[i][k] -= 1.0;
                     lin.a[k][i] -= 1.0;
                 }
-                lin.b[k] = volts * scale;
+                lin.b[k] = source_value(e, t) * scale;
                 k += 1;
             }
             Element::CurrentSource { from, to, amps } => {
@@ -250,6 +336,40 @@ fn newton(
             _ => {}
         }
     }
+}
+
+/// A voltage source's value: its DC value, or at time `t` (`None`: DC).
+pub(super) fn source_value(e: &Element, t: Option<f64>) -> f64 {
+    match *e {
+        Element::VoltageSource { volts, .. } => volts,
+        Element::Sine {
+            offset,
+            amplitude,
+            frequency,
+            ..
+        } => match t {
+            None => offset,
+            // formula: v(t) = offset + A·sin(2π·f·t)
+            Some(t) => offset + amplitude * libm::sin(2.0 * core::f64::consts::PI * frequency * t),
+        },
+        _ => 0.0,
+    }
+}
+
+/// One Newton attempt at source scale `scale` and node-to-ground
+/// conductance `gmin`, from `x` and the junction states `j`; returns the
+/// solution and its iterations, or `None`.
+fn newton(
+    num: &Numbered<'_>,
+    x: &mut [f64; MAX_UNKNOWNS],
+    j: &mut [Junctions],
+    scale: f64,
+    gmin: f64,
+) -> Option<u32> {
+    let n = num.n;
+    // The linear part, stamped once per attempt.
+    let mut lin = Dense::new(n);
+    stamp_linear(num, &mut lin, scale, None);
     for i in 0..num.first_source {
         lin.a[i][i] += gmin;
     }
@@ -257,40 +377,7 @@ fn newton(
     for it in 1..=MAX_ITERATIONS {
         let mut sys = lin;
         for (t, (c, b, em, device, polarity)) in transistors(num.net).enumerate() {
-            let s = polarity.sign();
-            let jn = j[t];
-            let cur = device.currents(jn.vbe, jn.vbc);
-            // Norton companion in the real frame: the current into each
-            // terminal is s·(I0 + g·(v − v0)) with v = s·(node differences),
-            // so the conductances are the NPN frame's and the equivalent
-            // currents change sign with the polarity.
-            let ic_eq = s * (cur.ic - cur.dic_dvbe * jn.vbe - cur.dic_dvbc * jn.vbc);
-            let ib_eq = s * (cur.ib - cur.dib_dvbe * jn.vbe - cur.dib_dvbc * jn.vbc);
-            let rows = [
-                (num.index[c.0], cur.dic_dvbe, cur.dic_dvbc, ic_eq),
-                (num.index[b.0], cur.dib_dvbe, cur.dib_dvbc, ib_eq),
-                (
-                    num.index[em.0],
-                    -(cur.dic_dvbe + cur.dib_dvbe),
-                    -(cur.dic_dvbc + cur.dib_dvbc),
-                    -(ic_eq + ib_eq),
-                ),
-            ];
-            let (nb, ne, nc) = (num.index[b.0], num.index[em.0], num.index[c.0]);
-            for (row, g_be, g_bc, i_eq) in rows {
-                let Some(r) = row else { continue };
-                // i = g_be·(Vb − Ve) + g_bc·(Vb − Vc) + i_eq leaves the node.
-                if let Some(col) = nb {
-                    sys.a[r][col] += g_be + g_bc;
-                }
-                if let Some(col) = ne {
-                    sys.a[r][col] -= g_be;
-                }
-                if let Some(col) = nc {
-                    sys.a[r][col] -= g_bc;
-                }
-                sys.b[r] -= i_eq;
-            }
+            stamp_transistor(num, &mut sys, (c, b, em), &device, polarity, j[t]);
         }
         // Far from the answer a plain LU step does (Newton corrects it
         // anyway); near it, the refined one, whose digits the convergence
@@ -298,18 +385,7 @@ fn newton(
         let refine = last_step < REFINE_BELOW;
         let new = sys.solve_refined(if refine { 2 } else { 0 })?;
         // The new junction voltages, limited.
-        let mut limited = false;
-        for (t, (c, b, em, device, polarity)) in transistors(num.net).enumerate() {
-            let s = polarity.sign();
-            let vb = num.v(&new, b.0);
-            let vbe = s * (vb - num.v(&new, em.0));
-            let vbc = s * (vb - num.v(&new, c.0));
-            let vcrit = device.v_critical();
-            let (vbe, l1) = limit_junction(vbe, j[t].vbe, device.vt, vcrit);
-            let (vbc, l2) = limit_junction(vbc, j[t].vbc, device.vt, vcrit);
-            limited |= l1 || l2;
-            j[t] = Junctions { vbe, vbc };
-        }
+        let limited = limit_transistors(num, &new, j);
         let mut step: f64 = 0.0;
         let mut size: f64 = 0.0;
         for i in 0..n {
@@ -359,7 +435,7 @@ fn kcl_holds(num: &Numbered<'_>, x: &[f64; MAX_UNKNOWNS], scale: f64, gmin: f64)
                 add(a.0, i, rounding);
                 add(b.0, -i, rounding);
             }
-            Element::VoltageSource { plus, minus, .. } => {
+            Element::VoltageSource { plus, minus, .. } | Element::Sine { plus, minus, .. } => {
                 let i = x[k];
                 add(plus.0, i, 0.0);
                 add(minus.0, -i, 0.0);
@@ -389,6 +465,7 @@ fn kcl_holds(num: &Numbered<'_>, x: &[f64; MAX_UNKNOWNS], scale: f64, gmin: f64)
                 e: em,
                 device,
                 polarity,
+                ..
             } => {
                 let s = polarity.sign();
                 let (vb, ve, vc) = (num.v(x, b.0), num.v(x, em.0), num.v(x, c.0));
@@ -434,7 +511,7 @@ pub(crate) enum Method {
 
 /// [`solve_dc`] with the given methods, in order, until one converges.
 pub(crate) fn solve_with(net: &Netlist, methods: &[Method]) -> Result<DcSolution> {
-    let num = Numbered::new(net)?;
+    let num = Numbered::new(net, false)?;
     let transistors: Vec<_> = net
         .elements()
         .iter()
@@ -448,6 +525,7 @@ pub(crate) fn solve_with(net: &Netlist, methods: &[Method]) -> Result<DcSolution
         .iter()
         .filter_map(|e| match *e {
             Element::VoltageSource { volts, .. } => Some(libm::fabs(volts)),
+            Element::Sine { offset, .. } => Some(libm::fabs(offset)),
             _ => None,
         })
         .fold(0.0, f64::max);

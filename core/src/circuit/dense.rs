@@ -75,14 +75,16 @@ fn residual_row(a: &[f64], x: &[f64], b: f64) -> f64 {
 }
 
 /// An LU factorisation with its row pivots.
-struct Lu {
+#[derive(Debug, Clone, Copy)]
+pub(crate) struct Lu {
     n: usize,
     lu: [[f64; MAX_UNKNOWNS]; MAX_UNKNOWNS],
     pivot: [usize; MAX_UNKNOWNS],
 }
 
 impl Lu {
-    fn factor(d: &Dense) -> Option<Lu> {
+    /// Factors `d`'s matrix; `None` when it is singular.
+    pub(crate) fn factor(d: &Dense) -> Option<Lu> {
         let n = d.n;
         let mut lu = d.a;
         let mut pivot = [0usize; MAX_UNKNOWNS];
@@ -112,7 +114,8 @@ impl Lu {
         Some(Lu { n, lu, pivot })
     }
 
-    fn solve(&self, b: &[f64; MAX_UNKNOWNS]) -> Option<[f64; MAX_UNKNOWNS]> {
+    /// Solves for the right-hand side `b`; `None` when the result is not finite.
+    pub(crate) fn solve(&self, b: &[f64; MAX_UNKNOWNS]) -> Option<[f64; MAX_UNKNOWNS]> {
         let n = self.n;
         let mut x = *b;
         // The rows were swapped whole as the factorisation went (its L

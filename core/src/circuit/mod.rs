@@ -50,16 +50,22 @@
 //! transient and the steady state.
 
 mod ac;
+mod charges;
 mod dc;
 mod dense;
 mod netlist;
 mod stages;
+mod transient;
 
 pub use ac::{solve_ac, AcSolution};
+pub use charges::{collector_junction, Charges, Depletion, FORWARD_COEFFICIENT};
 pub use dc::{solve_dc, DcSolution};
 pub use dense::MAX_UNKNOWNS;
 pub use netlist::{Element, Netlist, Node, GROUND};
-pub use stages::{ac_netlist, dc_netlist, AcNodes, StageNodes};
+#[cfg(test)]
+pub(crate) use stages::example_stages;
+pub use stages::{ac_netlist, dc_netlist, stage_netlist, AcNodes, SignalNodes, StageNodes};
+pub use transient::{periodic_steady_state, transient, Periodic, TransientOptions, TransientRun};
 
 #[cfg(doc)]
 use crate::transistor::Device;

@@ -2,6 +2,7 @@
 
 use alloc::vec::Vec;
 
+use super::charges::Charges;
 use crate::transistor::{Device, Polarity};
 
 /// A node of the netlist; [`GROUND`] is node 0.
@@ -24,7 +25,9 @@ pub enum Element {
         /// Resistance, Ω (≥ 0).
         ohms: f64,
     },
-    /// A capacitor between two nodes, F (open at DC).
+    /// A capacitor between two nodes, F: open at DC. An infinite one is
+    /// an ideal coupling or bypass capacitor: in the transient it holds the
+    /// voltage the DC solve left across it.
     Capacitor {
         /// One end.
         a: Node,
@@ -41,6 +44,22 @@ pub enum Element {
         minus: Node,
         /// Its DC value, V.
         volts: f64,
+    },
+    /// An independent voltage source of a DC value and a sine:
+    /// V(plus) − V(minus) = offset + amplitude·sin(2π·frequency·t). The DC
+    /// solve takes the offset, the small-signal solve the amplitude (as a
+    /// phasor of phase 0), the transient the whole.
+    Sine {
+        /// The positive terminal.
+        plus: Node,
+        /// The negative terminal.
+        minus: Node,
+        /// Its DC value, V.
+        offset: f64,
+        /// The sine's peak, V.
+        amplitude: f64,
+        /// The sine's frequency, Hz.
+        frequency: f64,
     },
     /// An independent current source driving `amps` from `from` through
     /// itself into `to`.
@@ -81,6 +100,8 @@ pub enum Element {
         device: Device,
         /// NPN or PNP.
         polarity: Polarity,
+        /// Its stored charges (the transient's; [`Charges::NONE`] for DC).
+        charges: Charges,
     },
 }
 

@@ -1,6 +1,7 @@
 //! The stages as netlists: a builder per stage, so that no analysis needs
 //! to know which stage it solves.
 
+use super::charges::Charges;
 use super::netlist::{Element, Netlist, Node, GROUND};
 use crate::hybrid_pi::SmallSignal;
 use crate::nodal::Band;
@@ -64,6 +65,7 @@ pub fn dc_netlist(stage: &Stage, device: &Device) -> (Netlist, StageNodes) {
         e: emitter,
         device: *device,
         polarity,
+        charges: Charges::NONE,
     });
     (
         net,
@@ -177,6 +179,129 @@ pub fn ac_netlist(stage: &Stage, ss: &SmallSignal, band: Band) -> (Netlist, AcNo
         siemens: ss.g_r,
     });
     (net, AcNodes { emf, input, output })
+}
+
+/// The nodes of a stage's whole netlist ([`stage_netlist`]).
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub struct SignalNodes {
+    /// The supply rail.
+    pub supply: Node,
+    /// The source EMF.
+    pub emf: Node,
+    /// The input terminal, after the source resistance.
+    pub input: Node,
+    /// The base terminal.
+    pub base: Node,
+    /// The internal base, behind rbb'.
+    pub base_internal: Node,
+    /// The emitter.
+    pub emitter: Node,
+    /// The collector.
+    pub collector: Node,
+    /// The load.
+    pub output: Node,
+    /// The transistor's own output terminal: the collector, or the
+    /// emitter of a follower.
+    pub terminal: Node,
+}
+
+/// The whole netlist of `stage`, for the transient: the supply, a sine
+/// EMF of `amplitude` volts peak at `frequency` hertz behind `rs`, the
+/// coupling and bypass capacitors (an absent one is ideal: an infinite
+/// capacitor, which holds its DC voltage), the load, the bias network of
+/// [`dc_netlist`] and the transistor `device` with its `charges`. The
+/// emitter resistance is `re` in series with `re_bypassed`, the bypass
+/// capacitor across the latter; a common-base stage's base capacitor goes
+/// from the base to ground. Its DC solution is [`dc_netlist`]'s.
+pub fn stage_netlist(
+    stage: &Stage,
+    device: &Device,
+    charges: Charges,
+    amplitude: f64,
+    frequency: f64,
+) -> (Netlist, SignalNodes) {
+    let p = &stage.parts;
+    let mut net = Netlist::new();
+    let supply = net.node();
+    let emf = net.node();
+    let input = net.node();
+    let base = net.node();
+    let base_internal = net.node();
+    let emitter = net.node();
+    let x = net.node();
+    let collector = net.node();
+    let output = net.node();
+    let cap = |c: Option<f64>| c.unwrap_or(f64::INFINITY);
+    net.add(Element::VoltageSource {
+        plus: supply,
+        minus: GROUND,
+        volts: stage.supply,
+    });
+    net.add(Element::Sine {
+        plus: emf,
+        minus: GROUND,
+        offset: 0.0,
+        amplitude,
+        frequency,
+    });
+    net.resistor(emf, input, p.rs);
+    if let Some(r1) = p.r1 {
+        net.resistor(supply, base, r1);
+    }
+    if let Some(r2) = p.r2 {
+        net.resistor(base, GROUND, r2);
+    }
+    net.resistor(base, base_internal, stage.transistor.rbb);
+    let polarity = stage.transistor.polarity;
+    let (collector_rail, emitter_rail) = match polarity {
+        Polarity::Npn => (supply, GROUND),
+        Polarity::Pnp => (GROUND, supply),
+    };
+    net.resistor(collector_rail, collector, p.rc);
+    net.resistor(emitter, x, p.re);
+    net.resistor(x, emitter_rail, p.re_bypassed);
+    if stage.kind == StageKind::CommonEmitter && p.re_bypassed > 0.0 {
+        net.capacitor(x, emitter_rail, cap(p.c_emitter));
+    }
+    net.resistor(output, GROUND, p.rl);
+    let terminal = match stage.kind {
+        StageKind::CommonEmitter => {
+            net.capacitor(input, base, cap(p.c_in));
+            collector
+        }
+        StageKind::CommonCollector => {
+            net.capacitor(input, base, cap(p.c_in));
+            emitter
+        }
+        StageKind::CommonBase => {
+            net.capacitor(input, emitter, cap(p.c_in));
+            net.capacitor(base, GROUND, cap(p.c_base));
+            collector
+        }
+    };
+    net.capacitor(terminal, output, cap(p.c_out));
+    net.add(Element::Bjt {
+        c: collector,
+        b: base_internal,
+        e: emitter,
+        device: *device,
+        polarity,
+        charges,
+    });
+    (
+        net,
+        SignalNodes {
+            supply,
+            emf,
+            input,
+            base,
+            base_internal,
+            emitter,
+            collector,
+            output,
+            terminal,
+        },
+    )
 }
 
 /// The example stage in each configuration and polarity (the follower and

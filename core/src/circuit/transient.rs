@@ -1,0 +1,944 @@
+//! The transient and the periodic steady state of a netlist.
+//!
+//! # Integration
+//! Charges, not capacitances, are integrated, so that no charge drifts
+//! over many cycles: each storing branch (a capacitor, a transistor's
+//! base–emitter and base–collector charges) carries its charge q(v), and
+//! its current is the backward-difference formula of second order (BDF2)
+//! applied to q:
+//!
+//! ```text
+//! i_n = (3·q_n − 4·q_(n−1) + q_(n−2)) / (2h)        (equal steps h)
+//! ```
+//!
+//! BDF2 is second order and L-stable (Gear, *Numerical Initial Value
+//! Problems in Ordinary Differential Equations*, 1971): the very fast
+//! modes of the junction charges (picoseconds beside a millisecond
+//! period) are damped in one step instead of ringing as under the
+//! trapezoidal rule. The first step, which has no second history point,
+//! is backward Euler (the damped start). At each time point Newton solves
+//! the MNA equations with every charge replaced by its companion: the
+//! conductance (3/2h)·C(v) and the current the history leaves, C and q
+//! evaluated at the iterate (the transistor's junctions limited as in the
+//! DC solve).
+//!
+//! The free-running transient ([`transient`]) varies its step to hold the
+//! local truncation error of every charge within a tolerance. The error is
+//! estimated by Milne's device: the gap between the BDF2 charge and the
+//! quadratic extrapolation of the three previous ones, times the ratio of
+//! the two formulas' error constants (2/9 against 1, so 2/11 of the gap at
+//! equal steps); a step whose error is over the tolerance is taken again,
+//! shorter, and the next step is scaled by (tolerance/error)^(1/3)
+//! (Hairer, Nørsett & Wanner, *Solving Ordinary Differential Equations I*,
+//! §II.4; the variable-step BDF2 coefficients as in Hairer & Wanner II,
+//! §III.5).
+//!
+//! # Periodic steady state
+//! Shooting (Aprille & Trick, Proc. IEEE 60, 1972): the state at the start
+//! of a period, z = (q_0, q_(−1)) (the two charge histories BDF2 starts
+//! from), is sought with Φ(z) = z, where Φ integrates one period on
+//! uniform steps T/N. Newton on z needs ∂Φ/∂z: it is carried along the
+//! period from each step's factored Jacobian (one extra solve per state
+//! column and step), so a few periods find the steady state however long
+//! the coupling capacitors' time constants are. A Newton step that does
+//! not reduce the residual is halved. The waveform returned is the period
+//! integrated from the final z, on the same uniform grid, so that a DFT of
+//! its samples needs no window.
+//!
+//! An ideal (infinite) capacitor holds the voltage the DC solve leaves
+//! across it.
+
+// The loops index the branches' charges, histories and sensitivities together.
+#![allow(clippy::needless_range_loop)]
+
+use alloc::string::String;
+use alloc::vec;
+use alloc::vec::Vec;
+
+use super::charges::Charges;
+use super::dc::{
+    is_ideal, limit_transistors, solve_dc, stamp_linear, stamp_transistor, transistors, DcSolution,
+    Junctions, Numbered,
+};
+use super::dense::{Dense, Lu, MAX_UNKNOWNS};
+use super::netlist::{Element, Netlist, Node};
+use crate::error::{Error, ErrorKind, Result};
+use crate::transistor::Device;
+
+type X = [f64; MAX_UNKNOWNS];
+
+/// Largest number of Newton iterations at one time point.
+const POINT_ITERATIONS: u32 = 60;
+/// A time point has converged when no node moves by more than this, V,
+/// plus the relative part below.
+const POINT_STEP_ABS: f64 = 1e-10;
+/// The relative part of the time point's step test.
+const POINT_STEP_REL: f64 = 1e-10;
+/// Largest number of shooting periods.
+const SHOOTING_PERIODS: u32 = 40;
+/// The steady state is found when every charge returns to its start to
+/// within this many volts across its capacitance (its charge change over
+/// its capacitance at the bias, or 1 fF if less) plus the relative part.
+const SHOOTING_ABS: f64 = 1e-10;
+/// The relative part of the shooting test, of the branch voltage.
+const SHOOTING_REL: f64 = 1e-10;
+
+/// What a branch stores.
+#[derive(Debug, Clone, Copy)]
+enum Store {
+    /// A linear capacitor, F.
+    Linear(f64),
+    /// The base–emitter charge of transistor `t` (its order in the netlist).
+    BaseEmitter {
+        t: usize,
+        device: Device,
+        charges: Charges,
+        sign: f64,
+    },
+    /// The base–collector charge of transistor `t`.
+    BaseCollector {
+        t: usize,
+        charges: Charges,
+        sign: f64,
+    },
+}
+
+/// A charge-storing branch from `a` to `b` (its current flows from `a`
+/// through it to `b`).
+#[derive(Debug, Clone, Copy)]
+struct Branch {
+    a: Node,
+    b: Node,
+    store: Store,
+}
+
+impl Branch {
+    /// The charge and the capacitance at the branch voltage V(a) − V(b).
+    fn charge(&self, v: f64) -> (f64, f64) {
+        match self.store {
+            Store::Linear(c) => (c * v, c),
+            Store::BaseEmitter {
+                device,
+                charges,
+                sign,
+                ..
+            } => {
+                let (q, c) = charges.base_emitter(&device, sign * v);
+                (sign * q, c)
+            }
+            Store::BaseCollector { charges, sign, .. } => {
+                let (q, c) = charges.base_collector(sign * v);
+                (sign * q, c)
+            }
+        }
+    }
+
+    /// The branch voltage at the iterate `x`, a transistor's from its
+    /// (limited) junction voltages `j`.
+    fn voltage(&self, num: &Numbered<'_>, x: &X, j: &[Junctions]) -> f64 {
+        match self.store {
+            Store::Linear(_) => num.v(x, self.a.0) - num.v(x, self.b.0),
+            Store::BaseEmitter { t, sign, .. } => sign * j[t].vbe,
+            Store::BaseCollector { t, sign, .. } => sign * j[t].vbc,
+        }
+    }
+}
+
+/// The netlist made ready for time stepping.
+struct Engine<'a> {
+    num: Numbered<'a>,
+    branches: Vec<Branch>,
+    /// Each ideal capacitor's nodes and the DC voltage it holds.
+    held: Vec<(Node, Node, f64)>,
+    /// The number of transistors.
+    transistors: usize,
+    /// The DC solution as unknowns.
+    x_dc: X,
+}
+
+/// The stored state at the end of a time step (per branch) and the
+/// factored Jacobian there.
+struct PointOut {
+    lu: Lu,
+    iterations: u32,
+}
+
+fn no_convergence(field: &str, iterations: u32, residual: f64) -> Error {
+    Error::new(
+        field,
+        ErrorKind::NoConvergence {
+            iterations,
+            residual,
+        },
+    )
+}
+
+impl<'a> Engine<'a> {
+    fn new(net: &'a Netlist, dc: &DcSolution) -> Result<Engine<'a>> {
+        let num = Numbered::new(net, true)?;
+        let mut branches = Vec::new();
+        let mut held = Vec::new();
+        let mut t = 0;
+        for e in net.elements() {
+            match *e {
+                Element::Capacitor { a, b, farads } if is_ideal(farads) => {
+                    held.push((a, b, dc.voltages[a.0] - dc.voltages[b.0]));
+                }
+                Element::Capacitor { a, b, farads } if farads > 0.0 => branches.push(Branch {
+                    a,
+                    b,
+                    store: Store::Linear(farads),
+                }),
+                Element::Bjt {
+                    c,
+                    b,
+                    e,
+                    device,
+                    polarity,
+                    charges,
+                } => {
+                    let sign = polarity.sign();
+                    if charges.tau_f > 0.0 || charges.emitter.cj0 > 0.0 {
+                        branches.push(Branch {
+                            a: b,
+                            b: e,
+                            store: Store::BaseEmitter {
+                                t,
+                                device,
+                                charges,
+                                sign,
+                            },
+                        });
+                    }
+                    if charges.collector.cj0 > 0.0 {
+                        branches.push(Branch {
+                            a: b,
+                            b: c,
+                            store: Store::BaseCollector { t, charges, sign },
+                        });
+                    }
+                    t += 1;
+                }
+                _ => {}
+            }
+        }
+        if 2 * branches.len() > MAX_UNKNOWNS {
+            return Err(Error::new(
+                "netlist",
+                ErrorKind::OutOfRange {
+                    value: branches.len() as f64,
+                    unit: "",
+                    allowed: String::from(
+                        "at most 8 charge-storing branches (capacitors and junction charges)",
+                    ),
+                },
+            ));
+        }
+        let mut x_dc = [0.0; MAX_UNKNOWNS];
+        for (node, slot) in num.index.iter().enumerate() {
+            if let Some(k) = *slot {
+                x_dc[k] = dc.voltages[node];
+            }
+        }
+        for (k, i) in dc.source_currents.iter().enumerate() {
+            x_dc[num.first_source + k] = *i;
+        }
+        Ok(Engine {
+            num,
+            branches,
+            held,
+            transistors: t,
+            x_dc,
+        })
+    }
+
+    /// The linear part at time `t`, the ideal capacitors held.
+    fn linear(&self, t: f64) -> Dense {
+        let mut lin = Dense::new(self.num.n);
+        stamp_linear(&self.num, &mut lin, 1.0, Some(t));
+        for (k, &(a, b, v)) in self.held.iter().enumerate() {
+            let row = self.num.first_ideal + k;
+            if let Some(i) = self.num.index[a.0] {
+                lin.a[i][row] += 1.0;
+                lin.a[row][i] += 1.0;
+            }
+            if let Some(i) = self.num.index[b.0] {
+                lin.a[i][row] -= 1.0;
+                lin.a[row][i] -= 1.0;
+            }
+            lin.b[row] = v;
+        }
+        lin
+    }
+
+    /// The junction voltages of every transistor at `x`, unlimited.
+    fn junctions(&self, x: &X, j: &mut [Junctions]) {
+        for (t, (c, b, e, _, polarity)) in transistors(self.num.net).enumerate() {
+            let s = polarity.sign();
+            let vb = self.num.v(x, b.0);
+            j[t] = Junctions {
+                vbe: s * (vb - self.num.v(x, e.0)),
+                vbc: s * (vb - self.num.v(x, c.0)),
+            };
+        }
+    }
+
+    /// Solves the time point `t` where each branch's current is
+    /// a0·q(v) + hist[b], from the guess in `x`; leaves the solution in
+    /// `x`, its charges in `q` and capacitances in `c`.
+    #[allow(clippy::too_many_arguments)]
+    fn point(
+        &self,
+        t: f64,
+        a0: f64,
+        hist: &[f64],
+        x: &mut X,
+        j: &mut [Junctions],
+        q: &mut [f64],
+        c: &mut [f64],
+    ) -> Option<PointOut> {
+        let lin = self.linear(t);
+        self.junctions(x, j);
+        let nodes = self.num.first_source;
+        for it in 1..=POINT_ITERATIONS {
+            let mut sys = lin;
+            for (k, (cn, b, e, device, polarity)) in transistors(self.num.net).enumerate() {
+                stamp_transistor(&self.num, &mut sys, (cn, b, e), &device, polarity, j[k]);
+            }
+            for (br, h) in self.branches.iter().zip(hist) {
+                let v0 = br.voltage(&self.num, x, j);
+                let (q0, c0) = br.charge(v0);
+                let g = a0 * c0;
+                // i = a0·q(v) + hist ≈ g·v + (a0·q0 + hist − g·v0), from a to b.
+                let i_eq = a0 * q0 + h - g * v0;
+                let (ia, ib) = (self.num.index[br.a.0], self.num.index[br.b.0]);
+                if let Some(r) = ia {
+                    sys.a[r][r] += g;
+                    sys.b[r] -= i_eq;
+                }
+                if let Some(r) = ib {
+                    sys.a[r][r] += g;
+                    sys.b[r] += i_eq;
+                }
+                if let (Some(r), Some(s)) = (ia, ib) {
+                    sys.a[r][s] -= g;
+                    sys.a[s][r] -= g;
+                }
+            }
+            let lu = Lu::factor(&sys)?;
+            let new = lu.solve(&sys.b)?;
+            let limited = limit_transistors(&self.num, &new, j);
+            let mut step: f64 = 0.0;
+            let mut size: f64 = 0.0;
+            for i in 0..nodes {
+                step = step.max(libm::fabs(new[i] - x[i]));
+                size = size.max(libm::fabs(new[i]));
+            }
+            *x = new;
+            if !limited && step <= POINT_STEP_ABS + POINT_STEP_REL * size {
+                for (k, br) in self.branches.iter().enumerate() {
+                    let (qk, ck) = br.charge(br.voltage(&self.num, x, j));
+                    q[k] = qk;
+                    c[k] = ck;
+                }
+                return Some(PointOut { lu, iterations: it });
+            }
+        }
+        None
+    }
+
+    /// The charges and capacitances at `x`.
+    fn charges_at(&self, x: &X) -> (Vec<f64>, Vec<f64>) {
+        let mut j = vec![Junctions { vbe: 0.0, vbc: 0.0 }; self.transistors];
+        self.junctions(x, &mut j);
+        self.branches
+            .iter()
+            .map(|br| br.charge(br.voltage(&self.num, x, &j)))
+            .unzip()
+    }
+}
+
+/// One period's record.
+struct Record {
+    /// The unknowns at each step's end.
+    x: Vec<X>,
+    /// Each branch's current at each step, `[step][branch]`.
+    current: Vec<Vec<f64>>,
+}
+
+impl<'a> Engine<'a> {
+    /// Integrates one period of `steps` uniform steps from the state `z`
+    /// (q_0 then q_(−1)) and the guess `x`; returns Φ(z), its Jacobian
+    /// ∂Φ/∂z (row-major, 2m × 2m) and the Newton iterations, and records
+    /// the period in `rec`.
+    fn period(
+        &self,
+        z: &[f64],
+        x: &mut X,
+        steps: usize,
+        period: f64,
+        rec: &mut Record,
+    ) -> Result<(Vec<f64>, Vec<f64>, u32)> {
+        let m = self.branches.len();
+        let w = 2 * m;
+        let h = period / steps as f64;
+        let a0 = 1.5 / h;
+        let mut q1 = z[..m].to_vec();
+        let mut q2 = z[m..].to_vec();
+        let mut q = vec![0.0; m];
+        let mut c = vec![0.0; m];
+        let mut hist = vec![0.0; m];
+        // ∂q_(n−1)/∂z and ∂q_(n−2)/∂z, m × 2m each.
+        let mut s1 = vec![0.0; m * w];
+        let mut s2 = vec![0.0; m * w];
+        for k in 0..m {
+            s1[k * w + k] = 1.0;
+            s2[k * w + m + k] = 1.0;
+        }
+        let mut s_new = vec![0.0; m * w];
+        let mut j = vec![Junctions { vbe: 0.0, vbc: 0.0 }; self.transistors];
+        let mut iterations = 0;
+        rec.x.clear();
+        for n in 1..=steps {
+            let t = n as f64 * h;
+            for k in 0..m {
+                // formula: hist = (−4·q_(n−1) + q_(n−2))/(2h)
+                hist[k] = (-4.0 * q1[k] + q2[k]) / (2.0 * h);
+            }
+            let out = self
+                .point(t, a0, &hist, x, &mut j, &mut q, &mut c)
+                .ok_or_else(|| no_convergence("steady state", iterations, f64::NAN))?;
+            iterations += out.iterations;
+            // The sensitivities: J·∂x/∂z = −B·∂hist/∂z, then ∂q/∂z = C·∂v/∂z.
+            for col in 0..w {
+                let mut rhs = [0.0; MAX_UNKNOWNS];
+                for (k, br) in self.branches.iter().enumerate() {
+                    let dh = (-4.0 * s1[k * w + col] + s2[k * w + col]) / (2.0 * h);
+                    if let Some(r) = self.num.index[br.a.0] {
+                        rhs[r] -= dh;
+                    }
+                    if let Some(r) = self.num.index[br.b.0] {
+                        rhs[r] += dh;
+                    }
+                }
+                let dx = out
+                    .lu
+                    .solve(&rhs)
+                    .ok_or_else(|| no_convergence("steady state", iterations, f64::NAN))?;
+                for (k, br) in self.branches.iter().enumerate() {
+                    let dv = self.num.v(&dx, br.a.0) - self.num.v(&dx, br.b.0);
+                    s_new[k * w + col] = c[k] * dv;
+                }
+            }
+            let row = rec.x.len();
+            if rec.current.len() <= row {
+                rec.current.push(vec![0.0; m]);
+            }
+            for k in 0..m {
+                rec.current[row][k] = a0 * q[k] + hist[k];
+            }
+            rec.x.push(*x);
+            core::mem::swap(&mut q2, &mut q1);
+            q1.copy_from_slice(&q);
+            core::mem::swap(&mut s2, &mut s1);
+            s1.copy_from_slice(&s_new);
+        }
+        let mut phi = q1;
+        phi.extend_from_slice(&q2);
+        let mut jac = s1;
+        jac.extend_from_slice(&s2);
+        Ok((phi, jac, iterations))
+    }
+}
+
+/// A periodic steady state on a uniform grid.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Periodic {
+    /// The period, s.
+    pub period: f64,
+    /// The sample times, s: T/N, 2T/N, …, T (the waveform repeats, so the
+    /// last is also the start).
+    pub time: Vec<f64>,
+    /// The voltage of every node at each sample, `[node][sample]`, V.
+    pub voltages: Vec<Vec<f64>>,
+    /// The current into each transistor's collector terminal at each
+    /// sample (transport, junction and charge currents together),
+    /// `[transistor][sample]`, A.
+    pub collector_currents: Vec<Vec<f64>>,
+    /// The current of each finite capacitor, in netlist order, from its
+    /// first node through it to its second, `[capacitor][sample]`, A.
+    pub capacitor_currents: Vec<Vec<f64>>,
+    /// Shooting periods integrated.
+    pub periods: u32,
+    /// Newton iterations over every time point of every period.
+    pub newton_iterations: u32,
+    /// The largest charge mismatch over one period, in volts across its
+    /// capacitance, at the end.
+    pub residual: f64,
+}
+
+/// The periodic steady state of `net` when every sine source runs at
+/// `frequency` hertz, sampled at `samples` uniform steps per period.
+///
+/// # Errors
+/// [`ErrorKind::OutOfRange`] naming `frequency` or `samples` (16 to 8192)
+/// for values outside those ranges; the DC solve's errors;
+/// [`ErrorKind::NoConvergence`] naming `steady state` when a time point or
+/// the shooting Newton does not converge.
+pub fn periodic_steady_state(net: &Netlist, frequency: f64, samples: usize) -> Result<Periodic> {
+    if !(frequency.is_finite() && frequency > 0.0) {
+        return Err(Error::new(
+            "frequency",
+            ErrorKind::OutOfRange {
+                value: frequency,
+                unit: "Hz",
+                allowed: String::from("a positive frequency"),
+            },
+        ));
+    }
+    if !(16..=8192).contains(&samples) {
+        return Err(Error::new(
+            "samples",
+            ErrorKind::OutOfRange {
+                value: samples as f64,
+                unit: "",
+                allowed: String::from("16 to 8192 samples per period"),
+            },
+        ));
+    }
+    let dc = solve_dc(net)?;
+    let engine = Engine::new(net, &dc)?;
+    let m = engine.branches.len();
+    let period = 1.0 / frequency;
+    let (q_dc, c_dc) = engine.charges_at(&engine.x_dc);
+    let scale: Vec<f64> = c_dc.iter().map(|c| libm::fmax(*c, 1e-15)).collect();
+    let mut z = q_dc.clone();
+    z.extend_from_slice(&q_dc);
+    let mut x = engine.x_dc;
+    let mut rec = Record {
+        x: Vec::with_capacity(samples),
+        current: Vec::with_capacity(samples),
+    };
+    let mut newton_iterations = 0;
+    let mut previous: Option<(Vec<f64>, Vec<f64>, f64)> = None;
+    let mut periods = 0;
+    let residual = loop {
+        if periods >= SHOOTING_PERIODS {
+            return Err(no_convergence("steady state", newton_iterations, f64::NAN));
+        }
+        periods += 1;
+        let (phi, jac, its) = engine.period(&z, &mut x, samples, period, &mut rec)?;
+        newton_iterations += its;
+        // The mismatch, in volts across each branch's capacitance.
+        let mut norm: f64 = 0.0;
+        for k in 0..2 * m {
+            let b = k % m;
+            let v = libm::fabs(phi[k] / scale[b]);
+            let gap = libm::fabs(phi[k] - z[k]) / scale[b];
+            norm = norm.max(gap / (SHOOTING_ABS + SHOOTING_REL * v));
+        }
+        if norm <= 1.0 {
+            break norm * SHOOTING_ABS;
+        }
+        if let Some((z_prev, step, norm_prev)) = &previous {
+            // A step that made things worse is halved (from where it began).
+            if norm > *norm_prev && step.iter().any(|d| *d != 0.0) {
+                let half: Vec<f64> = step.iter().map(|d| 0.5 * d).collect();
+                z = z_prev.iter().zip(&half).map(|(a, d)| a + d).collect();
+                previous = Some((z_prev.clone(), half, *norm_prev));
+                continue;
+            }
+        }
+        // Newton: (∂Φ/∂z − I)·Δ = −(Φ(z) − z).
+        let w = 2 * m;
+        let mut sys = Dense::new(w);
+        for r in 0..w {
+            for col in 0..w {
+                sys.a[r][col] = jac[r * w + col] - if r == col { 1.0 } else { 0.0 };
+            }
+            sys.b[r] = -(phi[r] - z[r]);
+        }
+        let delta = sys
+            .solve_refined(1)
+            .ok_or_else(|| no_convergence("steady state", newton_iterations, norm))?;
+        let step: Vec<f64> = delta[..w].to_vec();
+        let z_prev = z.clone();
+        for k in 0..w {
+            z[k] += step[k];
+        }
+        previous = Some((z_prev, step, norm));
+    };
+    // Read the accepted period out.
+    let nodes = net.nodes();
+    let mut voltages = vec![Vec::with_capacity(samples); nodes];
+    for xs in &rec.x {
+        for (node, v) in voltages.iter_mut().enumerate() {
+            v.push(engine.num.v(xs, node));
+        }
+    }
+    let h = period / samples as f64;
+    let time = (1..=samples).map(|n| n as f64 * h).collect();
+    let mut collector_currents = vec![Vec::with_capacity(samples); engine.transistors];
+    let mut j = vec![Junctions { vbe: 0.0, vbc: 0.0 }; engine.transistors];
+    for (n, xs) in rec.x.iter().enumerate() {
+        engine.junctions(xs, &mut j);
+        for (t, (_, _, _, device, polarity)) in transistors(net).enumerate() {
+            let mut ic = polarity.sign() * device.currents(j[t].vbe, j[t].vbc).ic;
+            for (k, br) in engine.branches.iter().enumerate() {
+                if let Store::BaseCollector { t: bt, .. } = br.store {
+                    if bt == t {
+                        // The charge current flows from the base into the
+                        // collector node inside the device.
+                        ic -= rec.current[n][k];
+                    }
+                }
+            }
+            collector_currents[t].push(ic);
+        }
+    }
+    let capacitor_currents = engine
+        .branches
+        .iter()
+        .enumerate()
+        .filter(|(_, br)| matches!(br.store, Store::Linear(_)))
+        .map(|(k, _)| rec.current[..rec.x.len()].iter().map(|i| i[k]).collect())
+        .collect();
+    Ok(Periodic {
+        period,
+        time,
+        voltages,
+        collector_currents,
+        capacitor_currents,
+        periods,
+        newton_iterations,
+        residual,
+    })
+}
+
+/// What [`transient`] is asked for.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct TransientOptions {
+    /// Where it stops, s.
+    pub stop: f64,
+    /// The step, s: the fixed step, or the first and largest one when
+    /// `tolerance` is set.
+    pub step: f64,
+    /// The local truncation error allowed per step, in volts across each
+    /// charge's capacitance: `None` for fixed steps.
+    pub tolerance: Option<f64>,
+    /// Time points before this are not kept, s.
+    pub record_from: f64,
+}
+
+/// A transient's record.
+#[derive(Debug, Clone, PartialEq)]
+pub struct TransientRun {
+    /// The kept time points, s.
+    pub time: Vec<f64>,
+    /// The voltage of every node at each kept point, `[node][point]`, V.
+    pub voltages: Vec<Vec<f64>>,
+    /// Steps taken and steps taken again (shorter), all told.
+    pub steps: u32,
+    /// Steps rejected for their truncation error.
+    pub rejected: u32,
+}
+
+/// The transient of `net` from its DC state at t = 0: backward Euler for
+/// the first step, BDF2 after it (with variable-step coefficients when
+/// `tolerance` is set, the step then chosen by the truncation error, as
+/// the module docs say).
+///
+/// # Errors
+/// [`ErrorKind::OutOfRange`] naming `stop`, `step` or `tolerance` for
+/// non-positive or non-finite values, or for more than ten million steps;
+/// the DC solve's errors; [`ErrorKind::NoConvergence`] naming `transient`
+/// when a time point does not converge even at a step a millionth of the
+/// first.
+pub fn transient(net: &Netlist, o: &TransientOptions) -> Result<TransientRun> {
+    let positive = |v: f64| v.is_finite() && v > 0.0;
+    for (field, v, unit) in [("stop", o.stop, "s"), ("step", o.step, "s")] {
+        if !positive(v) {
+            return Err(Error::new(
+                field,
+                ErrorKind::OutOfRange {
+                    value: v,
+                    unit,
+                    allowed: String::from("a positive time"),
+                },
+            ));
+        }
+    }
+    if o.tolerance.is_some_and(|t| !positive(t)) {
+        return Err(Error::new(
+            "tolerance",
+            ErrorKind::OutOfRange {
+                value: o.tolerance.unwrap_or(0.0),
+                unit: "V",
+                allowed: String::from("a positive voltage"),
+            },
+        ));
+    }
+    if o.tolerance.is_none() && o.stop / o.step > 1e7 {
+        return Err(Error::new(
+            "step",
+            ErrorKind::OutOfRange {
+                value: o.step,
+                unit: "s",
+                allowed: String::from("at most ten million steps to the stop time"),
+            },
+        ));
+    }
+    let dc = solve_dc(net)?;
+    let engine = Engine::new(net, &dc)?;
+    let m = engine.branches.len();
+    let mut x = engine.x_dc;
+    let (q0, c0) = engine.charges_at(&x);
+    let scale: Vec<f64> = c0.iter().map(|c| libm::fmax(*c, 1e-15)).collect();
+    // History: (t, q) of the last three accepted points, newest first.
+    let mut past: Vec<(f64, Vec<f64>)> = vec![(0.0, q0); 3];
+    let mut filled = 1;
+    let mut q = vec![0.0; m];
+    let mut c = vec![0.0; m];
+    let mut hist = vec![0.0; m];
+    let mut j = vec![Junctions { vbe: 0.0, vbc: 0.0 }; engine.transistors];
+    let nodes = net.nodes();
+    let mut run = TransientRun {
+        time: Vec::new(),
+        voltages: vec![Vec::new(); nodes],
+        steps: 0,
+        rejected: 0,
+    };
+    let keep = |run: &mut TransientRun, t: f64, x: &X| {
+        if t >= o.record_from {
+            run.time.push(t);
+            for (node, v) in run.voltages.iter_mut().enumerate() {
+                v.push(engine.num.v(x, node));
+            }
+        }
+    };
+    keep(&mut run, 0.0, &x);
+    let mut t = 0.0;
+    // The first step is short when the step is chosen, so that the error
+    // estimate has history to work from.
+    let mut h = match o.tolerance {
+        Some(_) => o.step * 1e-3,
+        None => o.step,
+    };
+    let h_min = o.step * 1e-6;
+    while t < o.stop * (1.0 - 1e-12) {
+        h = libm::fmin(h, o.stop - t);
+        let tn = t + h;
+        // The integration formula: i = a0·q_n + hist.
+        let a0 = if filled == 1 {
+            for k in 0..m {
+                hist[k] = -past[0].1[k] / h;
+            }
+            1.0 / h
+        } else {
+            // formula: variable-step BDF2, ω = h_n/h_(n−1):
+            // h·q' = (1+2ω)/(1+ω)·q_n − (1+ω)·q_(n−1) + ω²/(1+ω)·q_(n−2)
+            let h1 = past[0].0 - past[1].0;
+            let w = h / h1;
+            for k in 0..m {
+                hist[k] = (-(1.0 + w) * past[0].1[k] + w * w / (1.0 + w) * past[1].1[k]) / h;
+            }
+            (1.0 + 2.0 * w) / ((1.0 + w) * h)
+        };
+        let mut guess = x;
+        run.steps += 1;
+        let Some(_) = engine.point(tn, a0, &hist, &mut guess, &mut j, &mut q, &mut c) else {
+            // A point that does not converge is tried again at a quarter of the step.
+            if h * 0.25 < h_min {
+                return Err(no_convergence("transient", run.steps, f64::NAN));
+            }
+            h *= 0.25;
+            run.rejected += 1;
+            continue;
+        };
+        // The error estimate, with three points of history (Milne's device).
+        let mut grow = 2.0;
+        if let (Some(tol), true) = (o.tolerance, filled >= 3) {
+            let (t1, t2, t3) = (past[0].0, past[1].0, past[2].0);
+            let mut worst: f64 = 0.0;
+            for k in 0..m {
+                // The quadratic through the three previous points, at tn (Lagrange form).
+                let l1 = (tn - t2) * (tn - t3) / ((t1 - t2) * (t1 - t3));
+                let l2 = (tn - t1) * (tn - t3) / ((t2 - t1) * (t2 - t3));
+                let l3 = (tn - t1) * (tn - t2) / ((t3 - t1) * (t3 - t2));
+                let pred = l1 * past[0].1[k] + l2 * past[1].1[k] + l3 * past[2].1[k];
+                // formula: LTE ≈ (2/9)/(1 + 2/9)·|q_n − q_pred| = (2/11)·|q_n − q_pred|
+                let err = 2.0 / 11.0 * libm::fabs(q[k] - pred) / scale[k];
+                worst = worst.max(err / tol);
+            }
+            if worst > 1.0 {
+                run.rejected += 1;
+                h *= libm::fmax(0.2, 0.9 * libm::cbrt(1.0 / worst));
+                if h < h_min {
+                    return Err(no_convergence("transient", run.steps, worst));
+                }
+                continue;
+            }
+            grow = libm::fmin(
+                2.0,
+                libm::fmax(0.2, 0.9 * libm::cbrt(1.0 / libm::fmax(worst, 1e-9))),
+            );
+        }
+        x = guess;
+        t = tn;
+        past.rotate_right(1);
+        past[0].0 = t;
+        past[0].1.copy_from_slice(&q);
+        filled = (filled + 1).min(3);
+        keep(&mut run, t, &x);
+        h = match o.tolerance {
+            Some(_) => libm::fmin(h * grow, o.step),
+            None => o.step,
+        };
+    }
+    Ok(run)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::circuit::netlist::GROUND;
+    use core::f64::consts::PI;
+
+    /// A sine of 1 V at 1 kHz into 1 kΩ and 0.1 µF (τ = 0.1 ms), from rest.
+    fn rc() -> (Netlist, Node) {
+        let mut net = Netlist::new();
+        let (a, b) = (net.node(), net.node());
+        net.add(Element::Sine {
+            plus: a,
+            minus: GROUND,
+            offset: 0.0,
+            amplitude: 1.0,
+            frequency: 1e3,
+        });
+        net.resistor(a, b, 1e3);
+        net.capacitor(b, GROUND, 0.1e-6);
+        (net, b)
+    }
+
+    /// RC·v' + v = A·sin(ωt), v(0) = 0: v = A·(sin ωt − ωτ·cos ωt +
+    /// ωτ·e^(−t/τ))/(1 + ω²τ²) (the first-order circuit's complete
+    /// response, as in every circuits text).
+    fn exact(t: f64) -> f64 {
+        let (w, tau) = (2.0 * PI * 1e3, 1e-4);
+        let wt = w * tau;
+        (libm::sin(w * t) - wt * libm::cos(w * t) + wt * libm::exp(-t / tau)) / (1.0 + wt * wt)
+    }
+
+    #[test]
+    fn fixed_steps_converge_to_the_rc_response_at_second_order() {
+        // BDF2 is second order: halving the step quarters the global error
+        // (ratio 4 within 15 %, the first backward-Euler step's own error
+        // being of the same order over one step). Each error is the largest
+        // over 2 ms against the exact response.
+        let (net, b) = rc();
+        let error = |h: f64| {
+            let r = transient(
+                &net,
+                &TransientOptions {
+                    stop: 2e-3,
+                    step: h,
+                    tolerance: None,
+                    record_from: 0.0,
+                },
+            )
+            .expect("runs");
+            r.time
+                .iter()
+                .zip(&r.voltages[b.0])
+                .fold(0.0f64, |m, (t, v)| m.max((v - exact(*t)).abs()))
+        };
+        let (e1, e2) = (error(4e-6), error(2e-6));
+        assert!(e1 < 1e-3, "{e1}");
+        let ratio = e1 / e2;
+        assert!((ratio - 4.0).abs() <= 0.6, "{e1} / {e2} = {ratio}");
+    }
+
+    #[test]
+    fn the_chosen_step_follows_the_tolerance() {
+        // With the step chosen by the truncation error (h ∝ tol^(1/3) for a
+        // second-order method), the global error of this contracting
+        // circuit is about the per-step error times τ/h, so ∝ tol^(2/3):
+        // a tolerance 8 times tighter gives 4 times less error (2.5 to 6
+        // allowed: the step also meets its cap and the start) in about
+        // twice the steps (1.5 to 2.6); and each run's error stays within
+        // twice that sum, 2·tol·τ/h̄ with h̄ the mean step.
+        let (net, b) = rc();
+        let run = |tol: f64| {
+            let r = transient(
+                &net,
+                &TransientOptions {
+                    stop: 2e-3,
+                    step: 20e-6,
+                    tolerance: Some(tol),
+                    record_from: 0.0,
+                },
+            )
+            .expect("runs");
+            assert!((r.time.last().expect("points") - 2e-3).abs() < 1e-15);
+            let worst = r
+                .time
+                .iter()
+                .zip(&r.voltages[b.0])
+                .fold(0.0f64, |m, (t, v)| m.max((v - exact(*t)).abs()));
+            (worst, r.steps as f64)
+        };
+        let (e1, n1) = run(8e-6);
+        let (e2, n2) = run(1e-6);
+        for (e, tol, n) in [(e1, 8e-6, n1), (e2, 1e-6, n2)] {
+            let bound = 2.0 * tol * 1e-4 / (2e-3 / n);
+            assert!(e <= bound, "{e} over {n} steps at {tol}: bound {bound}");
+        }
+        assert!((2.5..=6.0).contains(&(e1 / e2)), "{e1} / {e2}");
+        assert!((1.5..=2.6).contains(&(n2 / n1)), "{n2} / {n1} steps");
+    }
+
+    #[test]
+    fn a_long_transient_settles_onto_the_shooting_steady_state() {
+        // Issue 10: the brute-force check of the steady state. The example
+        // common-emitter stage with coupling capacitors small enough that
+        // 60 periods settle it (the slowest time constant is about 2 ms,
+        // so 60 ms leave e^(−30) of the start), driven into clipping:
+        // the last period of the transient on the same uniform steps equals
+        // the shooting solution to 1e-7 of the output's peak (both are the
+        // same BDF2 recursion; what is left is the settling and the
+        // Newton tolerances).
+        use crate::analysis::analyze;
+        use crate::circuit::charges::Charges;
+        use crate::circuit::stages::stage_netlist;
+        let mut s = crate::stage::Stage::example();
+        s.parts.c_in = Some(0.1e-6);
+        s.parts.c_out = Some(0.1e-6);
+        s.parts.c_emitter = Some(2.2e-6);
+        let a = analyze(&s).expect("analyses");
+        let ch = Charges::at_bias(&s.transistor, &a.operating_point, &a.small_signal);
+        let (net, nodes) = stage_netlist(&s, &a.operating_point.device, ch, 0.4, 1e3);
+        let pss = periodic_steady_state(&net, 1e3, 256).expect("steady state");
+        let periods = 60;
+        let h = 1e-3 / 256.0;
+        let run = transient(
+            &net,
+            &TransientOptions {
+                stop: periods as f64 * 1e-3,
+                step: h,
+                tolerance: None,
+                record_from: (periods - 1) as f64 * 1e-3 + 0.5 * h,
+            },
+        )
+        .expect("runs");
+        let want = &pss.voltages[nodes.output.0];
+        let got = &run.voltages[nodes.output.0];
+        assert_eq!(got.len(), want.len());
+        let peak = want.iter().fold(0.0f64, |m, v| m.max(v.abs()));
+        let worst = got
+            .iter()
+            .zip(want)
+            .fold(0.0f64, |m, (a, b)| m.max((a - b).abs()));
+        assert!(worst <= 1e-7 * peak, "{worst} of {peak}");
+        assert!(pss.periods <= 8, "{} shooting periods", pss.periods);
+    }
+}
