@@ -115,10 +115,10 @@ mod value;
 
 pub use analysis::{analyze, analyze_with, Analysis, Options};
 pub use circuit::{
-    ac_netlist, collector_junction, dc_netlist, periodic_steady_state, solve_ac, solve_dc,
-    stage_netlist, transient, AcNodes, AcSolution, Charges, DcSolution, Depletion, Element,
-    Netlist, Node, Periodic, SignalNodes, StageNodes, TransientOptions, TransientRun,
-    FORWARD_COEFFICIENT, GROUND, MAX_UNKNOWNS,
+    ac_netlist, collector_junction, dc_netlist, periodic_steady_state, periodic_steady_state_from,
+    solve_ac, solve_dc, stage_netlist, transient, AcNodes, AcSolution, Charges, DcSolution,
+    Depletion, Element, Netlist, Node, Periodic, SignalNodes, StageNodes, TransientOptions,
+    TransientRun, FORWARD_COEFFICIENT, GROUND, MAX_UNKNOWNS,
 };
 pub use constants::{
     thermal_voltage, Temperature, BOLTZMANN, DATASHEET_TEMPERATURE, ELEMENTARY_CHARGE, ZERO_CELSIUS,

@@ -563,6 +563,13 @@ const COVERAGE: &[(&str, Covered)] = &[
         ),
     ),
     (
+        "periodic_steady_state_from",
+        Unit(
+            "large_signal",
+            "the_limited_swing_sits_where_the_curve_crosses_the_limit",
+        ),
+    ),
+    (
         "Periodic",
         Unit(
             "large_signal",

@@ -134,11 +134,12 @@ impl Lu {
                 s -= self.lu[i][j] * x[j];
             }
             x[i] = s / self.lu[i][i];
-            if !x[i].is_finite() {
-                return None;
-            }
         }
-        Some(x)
+        if x[..n].iter().all(|v| v.is_finite()) {
+            Some(x)
+        } else {
+            None
+        }
     }
 }
 

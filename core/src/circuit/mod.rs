@@ -65,7 +65,10 @@ pub use netlist::{Element, Netlist, Node, GROUND};
 #[cfg(test)]
 pub(crate) use stages::example_stages;
 pub use stages::{ac_netlist, dc_netlist, stage_netlist, AcNodes, SignalNodes, StageNodes};
-pub use transient::{periodic_steady_state, transient, Periodic, TransientOptions, TransientRun};
+pub use transient::{
+    periodic_steady_state, periodic_steady_state_from, transient, Periodic, TransientOptions,
+    TransientRun,
+};
 
 #[cfg(doc)]
 use crate::transistor::Device;

@@ -82,6 +82,9 @@ const SHOOTING_PERIODS: u32 = 40;
 const SHOOTING_ABS: f64 = 1e-10;
 /// The relative part of the shooting test, of the branch voltage.
 const SHOOTING_REL: f64 = 1e-10;
+/// And, while Newton still gains, every charge returns to within this
+/// share of its swing over the period.
+const SHOOTING_SWING: f64 = 1e-10;
 
 /// What a branch stores.
 #[derive(Debug, Clone, Copy)]
@@ -364,13 +367,16 @@ struct Record {
     x: Vec<X>,
     /// Each branch's current at each step, `[step][branch]`.
     current: Vec<Vec<f64>>,
+    /// Each branch's lowest and highest charge over the period, C.
+    range: Vec<(f64, f64)>,
 }
 
 impl<'a> Engine<'a> {
     /// Integrates one period of `steps` uniform steps from the state `z`
     /// (q_0 then q_(−1)) and the guess `x`; returns Φ(z), its Jacobian
     /// ∂Φ/∂z (row-major, 2m × 2m) and the Newton iterations, and records
-    /// the period in `rec`.
+    /// the period in `rec` (without `sensitivities`, the Jacobian returned
+    /// is not computed).
     fn period(
         &self,
         z: &[f64],
@@ -378,6 +384,7 @@ impl<'a> Engine<'a> {
         steps: usize,
         period: f64,
         rec: &mut Record,
+        sensitivities: bool,
     ) -> Result<(Vec<f64>, Vec<f64>, u32)> {
         let m = self.branches.len();
         let w = 2 * m;
@@ -396,38 +403,62 @@ impl<'a> Engine<'a> {
             s2[k * w + m + k] = 1.0;
         }
         let mut s_new = vec![0.0; m * w];
+        let mut kmat = vec![0.0; m * m];
+        let mut dh = vec![0.0; m];
         let mut j = vec![Junctions { vbe: 0.0, vbc: 0.0 }; self.transistors];
         let mut iterations = 0;
         rec.x.clear();
+        rec.range.clear();
+        rec.range.extend(z[..m].iter().map(|q| (*q, *q)));
         for n in 1..=steps {
             let t = n as f64 * h;
             for k in 0..m {
                 // formula: hist = (−4·q_(n−1) + q_(n−2))/(2h)
                 hist[k] = (-4.0 * q1[k] + q2[k]) / (2.0 * h);
             }
+            // The guess: the quadratic through the last three points
+            // (the waveform is smooth on the grid), else the last point.
+            if n > 3 {
+                let (x1, x2, x3) = (&rec.x[n - 2], &rec.x[n - 3], &rec.x[n - 4]);
+                for i in 0..self.num.n {
+                    x[i] = 3.0 * x1[i] - 3.0 * x2[i] + x3[i];
+                }
+            }
             let out = self
                 .point(t, a0, &hist, x, &mut j, &mut q, &mut c)
                 .ok_or_else(|| no_convergence("steady state", iterations, f64::NAN))?;
             iterations += out.iterations;
-            // The sensitivities: J·∂x/∂z = −B·∂hist/∂z, then ∂q/∂z = C·∂v/∂z.
-            for col in 0..w {
+            // The sensitivities: J·∂x/∂z = −B·∂hist/∂z (B the branches'
+            // incidence), so the branch voltages move by ∂v/∂z =
+            // −K·∂hist/∂z with K = Bᵀ·J⁻¹·B (m solves, not 2m), and then
+            // ∂q/∂z = C·∂v/∂z.
+            for k in 0..m * usize::from(sensitivities) {
+                let br = &self.branches[k];
                 let mut rhs = [0.0; MAX_UNKNOWNS];
-                for (k, br) in self.branches.iter().enumerate() {
-                    let dh = (-4.0 * s1[k * w + col] + s2[k * w + col]) / (2.0 * h);
-                    if let Some(r) = self.num.index[br.a.0] {
-                        rhs[r] -= dh;
-                    }
-                    if let Some(r) = self.num.index[br.b.0] {
-                        rhs[r] += dh;
-                    }
+                if let Some(r) = self.num.index[br.a.0] {
+                    rhs[r] += 1.0;
                 }
-                let dx = out
+                if let Some(r) = self.num.index[br.b.0] {
+                    rhs[r] -= 1.0;
+                }
+                let y = out
                     .lu
                     .solve(&rhs)
                     .ok_or_else(|| no_convergence("steady state", iterations, f64::NAN))?;
-                for (k, br) in self.branches.iter().enumerate() {
-                    let dv = self.num.v(&dx, br.a.0) - self.num.v(&dx, br.b.0);
-                    s_new[k * w + col] = c[k] * dv;
+                for (r, other) in self.branches.iter().enumerate() {
+                    kmat[r * m + k] = self.num.v(&y, other.a.0) - self.num.v(&y, other.b.0);
+                }
+            }
+            for col in 0..w * usize::from(sensitivities) {
+                for k in 0..m {
+                    dh[k] = (-4.0 * s1[k * w + col] + s2[k * w + col]) / (2.0 * h);
+                }
+                for r in 0..m {
+                    let mut dv = 0.0;
+                    for k in 0..m {
+                        dv -= kmat[r * m + k] * dh[k];
+                    }
+                    s_new[r * w + col] = c[r] * dv;
                 }
             }
             let row = rec.x.len();
@@ -440,6 +471,9 @@ impl<'a> Engine<'a> {
             rec.x.push(*x);
             core::mem::swap(&mut q2, &mut q1);
             q1.copy_from_slice(&q);
+            for (r, qk) in rec.range.iter_mut().zip(&q) {
+                *r = (r.0.min(*qk), r.1.max(*qk));
+            }
             core::mem::swap(&mut s2, &mut s1);
             s1.copy_from_slice(&s_new);
         }
@@ -470,11 +504,33 @@ pub struct Periodic {
     pub capacitor_currents: Vec<Vec<f64>>,
     /// Shooting periods integrated.
     pub periods: u32,
+    /// The state the accepted period starts from: each charge-storing
+    /// branch's charge at the start, then one step before (C), to seed a
+    /// neighbouring solve ([`periodic_steady_state_from`]).
+    pub start: Vec<f64>,
     /// Newton iterations over every time point of every period.
     pub newton_iterations: u32,
     /// The largest charge mismatch over one period, in volts across its
     /// capacitance, at the end.
     pub residual: f64,
+}
+
+impl Periodic {
+    /// A seed for [`periodic_steady_state_from`] holding only the state
+    /// `start` (as [`Periodic::start`] gives it).
+    pub fn seed(start: &[f64]) -> Periodic {
+        Periodic {
+            period: 0.0,
+            time: Vec::new(),
+            voltages: Vec::new(),
+            collector_currents: Vec::new(),
+            capacitor_currents: Vec::new(),
+            periods: 0,
+            start: start.to_vec(),
+            newton_iterations: 0,
+            residual: 0.0,
+        }
+    }
 }
 
 /// The periodic steady state of `net` when every sine source runs at
@@ -486,6 +542,24 @@ pub struct Periodic {
 /// [`ErrorKind::NoConvergence`] naming `steady state` when a time point or
 /// the shooting Newton does not converge.
 pub fn periodic_steady_state(net: &Netlist, frequency: f64, samples: usize) -> Result<Periodic> {
+    periodic_steady_state_from(net, frequency, samples, None)
+}
+
+/// [`periodic_steady_state`] started from a neighbouring solution: with
+/// `seed` = (a steady state of the same netlist at another drive, the
+/// ratio r of this drive to that one), the first guess of the state is
+/// the DC state plus r times that one's departure from it (exact for a
+/// linear circuit), which saves a period or two along a sweep of
+/// amplitudes.
+///
+/// # Errors
+/// As [`periodic_steady_state`].
+pub fn periodic_steady_state_from(
+    net: &Netlist,
+    frequency: f64,
+    samples: usize,
+    seed: Option<(&Periodic, f64)>,
+) -> Result<Periodic> {
     if !(frequency.is_finite() && frequency > 0.0) {
         return Err(Error::new(
             "frequency",
@@ -514,21 +588,41 @@ pub fn periodic_steady_state(net: &Netlist, frequency: f64, samples: usize) -> R
     let scale: Vec<f64> = c_dc.iter().map(|c| libm::fmax(*c, 1e-15)).collect();
     let mut z = q_dc.clone();
     z.extend_from_slice(&q_dc);
+    if let Some((p, r)) = seed {
+        if p.start.len() == z.len() && r.is_finite() {
+            for (k, zk) in z.iter_mut().enumerate() {
+                let dc = q_dc[k % m];
+                *zk = dc + r * (p.start[k] - dc);
+            }
+        }
+    }
     let mut x = engine.x_dc;
     let mut rec = Record {
         x: Vec::with_capacity(samples),
         current: Vec::with_capacity(samples),
+        range: Vec::with_capacity(m),
     };
     let mut newton_iterations = 0;
     let mut previous: Option<(Vec<f64>, Vec<f64>, f64)> = None;
     let mut periods = 0;
+    // Without sensitivities once Newton's last step was this small (volts
+    // across a capacitance): its quadratic convergence makes the next
+    // period the last, and if not, the last Jacobian serves (a chord step).
+    const CHORD_BELOW: f64 = 1e-3;
+    let mut jac_last: Vec<f64> = Vec::new();
+    let mut strict_prev = f64::INFINITY;
+    let mut sensitivities = true;
     let residual = loop {
         if periods >= SHOOTING_PERIODS {
             return Err(no_convergence("steady state", newton_iterations, f64::NAN));
         }
         periods += 1;
-        let (phi, jac, its) = engine.period(&z, &mut x, samples, period, &mut rec)?;
+        let (phi, jac, its) =
+            engine.period(&z, &mut x, samples, period, &mut rec, sensitivities)?;
         newton_iterations += its;
+        if sensitivities {
+            jac_last = jac;
+        }
         // The mismatch, in volts across each branch's capacitance.
         let mut norm: f64 = 0.0;
         for k in 0..2 * m {
@@ -537,15 +631,30 @@ pub fn periodic_steady_state(net: &Netlist, frequency: f64, samples: usize) -> R
             let gap = libm::fabs(phi[k] - z[k]) / scale[b];
             norm = norm.max(gap / (SHOOTING_ABS + SHOOTING_REL * v));
         }
-        if norm <= 1.0 {
+        // The stricter test, of the branch's own charge swing over the
+        // period (a nearly idle capacitor's mean current stays a small
+        // share of its own peak), down to a few units of rounding of its
+        // charge; once the first test holds, it is pursued as long as
+        // Newton still gains.
+        let mut strict: f64 = 0.0;
+        for k in 0..2 * m {
+            let b = k % m;
+            let (lo, hi) = rec.range[b];
+            let floor = 16.0 * f64::EPSILON * libm::fmax(libm::fabs(lo), libm::fabs(hi));
+            let gap = libm::fabs(phi[k] - z[k]);
+            strict = strict.max(gap / (SHOOTING_SWING * (hi - lo) + floor + f64::MIN_POSITIVE));
+        }
+        if norm <= 1.0 && (strict <= 1.0 || strict >= 0.25 * strict_prev) {
             break norm * SHOOTING_ABS;
         }
+        strict_prev = strict;
         if let Some((z_prev, step, norm_prev)) = &previous {
             // A step that made things worse is halved (from where it began).
             if norm > *norm_prev && step.iter().any(|d| *d != 0.0) {
                 let half: Vec<f64> = step.iter().map(|d| 0.5 * d).collect();
                 z = z_prev.iter().zip(&half).map(|(a, d)| a + d).collect();
                 previous = Some((z_prev.clone(), half, *norm_prev));
+                sensitivities = true;
                 continue;
             }
         }
@@ -554,7 +663,7 @@ pub fn periodic_steady_state(net: &Netlist, frequency: f64, samples: usize) -> R
         let mut sys = Dense::new(w);
         for r in 0..w {
             for col in 0..w {
-                sys.a[r][col] = jac[r * w + col] - if r == col { 1.0 } else { 0.0 };
+                sys.a[r][col] = jac_last[r * w + col] - if r == col { 1.0 } else { 0.0 };
             }
             sys.b[r] = -(phi[r] - z[r]);
         }
@@ -563,11 +672,15 @@ pub fn periodic_steady_state(net: &Netlist, frequency: f64, samples: usize) -> R
             .ok_or_else(|| no_convergence("steady state", newton_iterations, norm))?;
         let step: Vec<f64> = delta[..w].to_vec();
         let z_prev = z.clone();
+        let mut largest: f64 = 0.0;
         for k in 0..w {
             z[k] += step[k];
+            largest = largest.max(libm::fabs(step[k]) / scale[k % m]);
         }
+        sensitivities = largest > CHORD_BELOW;
         previous = Some((z_prev, step, norm));
     };
+    let start = z.clone();
     // Read the accepted period out.
     let nodes = net.nodes();
     let mut voltages = vec![Vec::with_capacity(samples); nodes];
@@ -610,6 +723,7 @@ pub fn periodic_steady_state(net: &Netlist, frequency: f64, samples: usize) -> R
         collector_currents,
         capacitor_currents,
         periods,
+        start,
         newton_iterations,
         residual,
     })
