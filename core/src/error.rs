@@ -221,11 +221,19 @@ impl fmt::Display for Error {
             ErrorKind::NoConvergence {
                 iterations,
                 residual,
-            } => write!(
-                f,
-                "{field}: the operating point did not converge after {iterations} iterations \
-                 (residual {residual:.3e} V); check that the bias network can turn the transistor on"
-            ),
+            } => match field {
+                "steady state" | "transient" => write!(
+                    f,
+                    "{field}: the time-domain solve did not converge after {iterations} Newton \
+                     iterations; try a smaller amplitude or another frequency (a drive that \
+                     slams the transistor between cutoff and deep saturation can defeat it)"
+                ),
+                _ => write!(
+                    f,
+                    "{field}: the operating point did not converge after {iterations} iterations \
+                     (residual {residual:.3e} V); check that the bias network can turn the transistor on"
+                ),
+            },
             ErrorKind::Inconsistent { reason } | ErrorKind::Document { reason } => {
                 write!(f, "{field}: {reason}")
             }

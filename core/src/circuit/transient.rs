@@ -299,11 +299,12 @@ impl<'a> Engine<'a> {
         j: &mut [Junctions],
         q: &mut [f64],
         c: &mut [f64],
+        iterations: u32,
     ) -> Option<PointOut> {
         let lin = self.linear(t);
         self.junctions(x, j);
         let nodes = self.num.first_source;
-        for it in 1..=POINT_ITERATIONS {
+        for it in 1..=iterations {
             let mut sys = lin;
             for (k, (cn, b, e, device, polarity)) in transistors(self.num.net).enumerate() {
                 stamp_transistor(&self.num, &mut sys, (cn, b, e), &device, polarity, j[k]);
@@ -418,15 +419,34 @@ impl<'a> Engine<'a> {
             }
             // The guess: the quadratic through the last three points
             // (the waveform is smooth on the grid), else the last point.
+            let last = *x;
             if n > 3 {
                 let (x1, x2, x3) = (&rec.x[n - 2], &rec.x[n - 3], &rec.x[n - 4]);
                 for i in 0..self.num.n {
                     x[i] = 3.0 * x1[i] - 3.0 * x2[i] + x3[i];
                 }
             }
-            let out = self
-                .point(t, a0, &hist, x, &mut j, &mut q, &mut c)
-                .ok_or_else(|| no_convergence("steady state", iterations, f64::NAN))?;
+            // Should the guess lead Newton astray (a corner of a clipped
+            // waveform), the point is solved again from the last one, with
+            // more iterations.
+            let out = match self.point(t, a0, &hist, x, &mut j, &mut q, &mut c, POINT_ITERATIONS) {
+                Some(out) => out,
+                None => {
+                    iterations += POINT_ITERATIONS;
+                    *x = last;
+                    self.point(
+                        t,
+                        a0,
+                        &hist,
+                        x,
+                        &mut j,
+                        &mut q,
+                        &mut c,
+                        8 * POINT_ITERATIONS,
+                    )
+                    .ok_or_else(|| no_convergence("steady state", iterations, f64::NAN))?
+                }
+            };
             iterations += out.iterations;
             // The sensitivities: J·∂x/∂z = −B·∂hist/∂z (B the branches'
             // incidence), so the branch voltages move by ∂v/∂z =
@@ -611,6 +631,7 @@ pub fn periodic_steady_state_from(
     const CHORD_BELOW: f64 = 1e-3;
     let mut jac_last: Vec<f64> = Vec::new();
     let mut strict_prev = f64::INFINITY;
+    let mut loose_passes = 0;
     let mut sensitivities = true;
     let residual = loop {
         if periods >= SHOOTING_PERIODS {
@@ -644,7 +665,10 @@ pub fn periodic_steady_state_from(
             let gap = libm::fabs(phi[k] - z[k]);
             strict = strict.max(gap / (SHOOTING_SWING * (hi - lo) + floor + f64::MIN_POSITIVE));
         }
-        if norm <= 1.0 && (strict <= 1.0 || strict >= 0.25 * strict_prev) {
+        if norm <= 1.0 {
+            loose_passes += 1;
+        }
+        if norm <= 1.0 && (strict <= 1.0 || strict >= 0.25 * strict_prev || loose_passes >= 3) {
             break norm * SHOOTING_ABS;
         }
         strict_prev = strict;
@@ -677,7 +701,9 @@ pub fn periodic_steady_state_from(
             z[k] += step[k];
             largest = largest.max(libm::fabs(step[k]) / scale[k % m]);
         }
-        sensitivities = largest > CHORD_BELOW;
+        // One chord step at most in a row: a period without sensitivities
+        // that did not end it is followed by one with them.
+        sensitivities = largest > CHORD_BELOW || !sensitivities;
         previous = Some((z_prev, step, norm));
     };
     let start = z.clone();
@@ -860,7 +886,16 @@ pub fn transient(net: &Netlist, o: &TransientOptions) -> Result<TransientRun> {
         };
         let mut guess = x;
         run.steps += 1;
-        let Some(_) = engine.point(tn, a0, &hist, &mut guess, &mut j, &mut q, &mut c) else {
+        let Some(_) = engine.point(
+            tn,
+            a0,
+            &hist,
+            &mut guess,
+            &mut j,
+            &mut q,
+            &mut c,
+            POINT_ITERATIONS,
+        ) else {
             // A point that does not converge is tried again at a quarter of the step.
             if h * 0.25 < h_min {
                 return Err(no_convergence("transient", run.steps, f64::NAN));
