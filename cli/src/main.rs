@@ -9,6 +9,7 @@
 // file (not directly in `src/bin/`, where cargo would take them for binaries).
 mod design;
 mod junit;
+mod large;
 mod tolerance;
 
 use std::io::{self, Read, Write};
@@ -56,6 +57,7 @@ Examples:
   stagewright check --worst-case --monte-carlo 2000 designs/*.json
                                                 and with a tolerance analysis
   stagewright sweep design.json --from 10 --to 1G --points 200 --csv
+  stagewright waveform design.json --out-peak 1,2,3 --frequency 1k
   stagewright values 4k7 --series E24
   stagewright presets
 
@@ -114,6 +116,37 @@ enum Command {
         /// The design file; `-` reads standard input.
         file: String,
         /// Print the report as one JSON document (stagewright-report/1).
+        #[arg(long)]
+        json: bool,
+        /// Leave out the large-signal section (the steady-state solves of
+        /// the distortion-limited swing, some tens of milliseconds).
+        #[arg(long)]
+        small_signal_only: bool,
+    },
+    /// Print the steady-state waveforms of a design under a sine drive.
+    ///
+    /// For each drive: the output peak at the load (the fundamental), THD
+    /// over harmonics 2 to 10, harmonics 1 to 10 with their level and
+    /// phase, the mean shift of the output terminal and of the collector
+    /// current, and what clips. --csv gives one row per sample of every
+    /// waveform (time, load, input, base, emitter, collector voltages and
+    /// the collector current); --json all of it (stagewright-waveform/1).
+    Waveform {
+        /// The design file; `-` reads standard input.
+        file: String,
+        /// EMF peaks of the source, comma-separated, e.g. "0.1,0.2,0.5".
+        #[arg(long, conflicts_with = "out_peak", allow_hyphen_values = true)]
+        emf: Option<String>,
+        /// Output peaks at the load, comma-separated (the EMF is found).
+        #[arg(long, allow_hyphen_values = true)]
+        out_peak: Option<String>,
+        /// The sine's frequency.
+        #[arg(long, default_value = "1k", allow_hyphen_values = true)]
+        frequency: String,
+        /// Print CSV (SI base units).
+        #[arg(long, conflicts_with = "json")]
+        csv: bool,
+        /// Print JSON (stagewright-waveform/1).
         #[arg(long)]
         json: bool,
     },
@@ -186,17 +219,42 @@ enum Command {
 }
 
 /// Exit status: every check passes.
-const PASS: u8 = 0;
+pub(crate) const PASS: u8 = 0;
 /// Exit status: a requirement or rating fails.
 const FAIL: u8 = 1;
 /// Exit status: a file is invalid, or the command line is wrong.
-const INVALID: u8 = 2;
+pub(crate) const INVALID: u8 = 2;
 
 fn main() -> ExitCode {
     let cli = Cli::parse();
     let code = match cli.command {
         Command::Design { file, json, output } => design::run(&file, json, output.as_deref()),
-        Command::Analyze { file, json } => analyze(&file, json),
+        Command::Analyze {
+            file,
+            json,
+            small_signal_only,
+        } => analyze(&file, json, !small_signal_only),
+        Command::Waveform {
+            file,
+            emf,
+            out_peak,
+            frequency,
+            csv,
+            json,
+        } => {
+            let drive = match (emf, out_peak) {
+                (Some(t), _) => large::list("emf", &t, "V").map(large::Drive::Emf),
+                (None, Some(t)) => large::list("out-peak", &t, "V").map(large::Drive::Peak),
+                (None, None) => large::list("out-peak", "1", "V").map(large::Drive::Peak),
+            };
+            match drive {
+                Ok(d) => large::run(&file, d, &frequency, csv, json),
+                Err(e) => {
+                    eprintln!("error: --{e}");
+                    INVALID
+                }
+            }
+        }
         Command::Check {
             files,
             json,
@@ -224,12 +282,12 @@ fn main() -> ExitCode {
 }
 
 /// Writes to standard output; a closed pipe (`| head`) is not an error.
-fn out(text: &str) {
+pub(crate) fn out(text: &str) {
     let _ = io::stdout().write_all(text.as_bytes());
 }
 
 /// How a file is named in messages.
-fn shown_name(file: &str) -> &str {
+pub(crate) fn shown_name(file: &str) -> &str {
     if file == "-" {
         "standard input"
     } else {
@@ -238,7 +296,7 @@ fn shown_name(file: &str) -> &str {
 }
 
 /// Why a design could not be used.
-enum Problem {
+pub(crate) enum Problem {
     /// The file could not be read at all.
     Io(String),
     /// The design is invalid or cannot be solved.
@@ -285,29 +343,55 @@ fn read_text(file: &str) -> Result<String, Problem> {
 }
 
 /// Reads, validates and analyses one design file.
-fn load(file: &str) -> Result<(Design, stagewright::Analysis), Problem> {
+pub(crate) fn load(file: &str) -> Result<(Design, stagewright::Analysis), Problem> {
     let text = read_text(file)?;
     let design = Design::from_json(&text).map_err(Problem::Design)?;
     let analysis = design.analyze().map_err(Problem::Design)?;
     Ok((design, analysis))
 }
 
-fn report_problem(file: &str, p: &Problem) -> u8 {
+pub(crate) fn report_problem(file: &str, p: &Problem) -> u8 {
     eprintln!("error: {}: {}", shown_name(file), p.message());
     INVALID
 }
 
-fn analyze(file: &str, json: bool) -> u8 {
+fn analyze(file: &str, json: bool, large_signal: bool) -> u8 {
     let (design, analysis) = match load(file) {
         Ok(x) => x,
         Err(p) => return report_problem(file, &p),
     };
     let report = Report::new(&design, &analysis);
+    // The large-signal section: when the stage cannot be solved in the
+    // time domain, the section says why and the rest of the report stands.
+    let section = large_signal.then(|| large::Section::new(&design));
     if json {
-        out(&report.to_json_string());
+        match section {
+            None => out(&report.to_json_string()),
+            Some(section) => {
+                let mut doc = serde_json::to_value(&report).unwrap_or(serde_json::Value::Null);
+                if let Some(m) = doc.as_object_mut() {
+                    let value = match &section {
+                        Ok(s) => s.to_json(),
+                        Err(e) => {
+                            json!({ "error": { "field": e.field(), "message": e.to_string() } })
+                        }
+                    };
+                    m.insert("large_signal".into(), value);
+                }
+                out(&format!(
+                    "{}\n",
+                    serde_json::to_string_pretty(&doc).unwrap_or_default()
+                ));
+            }
+        }
     } else {
         out(&format!("{}\n", shown_name(file)));
         out(&report.to_text());
+        match section {
+            Some(Ok(s)) => out(&s.to_text()),
+            Some(Err(e)) => out(&format!("\nLarge signal: not available ({e})\n")),
+            None => {}
+        }
     }
     if report.passed() {
         PASS

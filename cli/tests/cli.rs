@@ -748,7 +748,13 @@ fn design_json_carries_the_target_the_design_file_and_its_report() {
     )
     .expect("the design can be written");
     let o = run(&["analyze", &written, "--json"], "");
-    let analysed: Value = serde_json::from_str(&stdout(&o)).expect("analyze --json prints JSON");
+    let mut analysed: Value =
+        serde_json::from_str(&stdout(&o)).expect("analyze --json prints JSON");
+    // The large-signal section is analyze's own (design --json carries the report proper).
+    assert!(analysed["large_signal"].is_object());
+    if let Some(m) = analysed.as_object_mut() {
+        m.remove("large_signal");
+    }
     assert_eq!(
         analysed, v["report"],
         "the report of design --json is the report of the design file it holds"
@@ -1183,6 +1189,12 @@ fn golden_runs() -> Vec<(String, Vec<String>)> {
             vec!["analyze".into(), path.clone()],
         ));
         runs.push((
+            format!("{stem}.waveform.txt"),
+            ["waveform", "--emf", "20m,200m", &path]
+                .map(String::from)
+                .to_vec(),
+        ));
+        runs.push((
             format!("{stem}.check.json"),
             [
                 "check",
@@ -1346,4 +1358,108 @@ fn junit_report_validates_and_counts_every_check() {
     let broken = xml.replacen(" classname=\"examples/transducer-gain-stage.json\"", "", 1);
     let (ok, _) = junit_valid(&broken, "broken.xml");
     assert!(!ok, "a test case without a class name is refused");
+}
+
+#[test]
+fn waveform_prints_steady_states_as_text_csv_and_json() {
+    // The line-driver example at two output peaks: the JSON carries one
+    // waveform per peak, 256 samples of each signal, ten harmonics, and
+    // the output peak asked for (to the 0.01 % the search stops at); the
+    // CSV has a row per sample of each; the text names THD and clipping.
+    let o = run(
+        &[
+            "waveform",
+            "--out-peak",
+            "1,2",
+            "--json",
+            "examples/line-driver-600.json",
+        ],
+        "",
+    );
+    assert_eq!(o.status.code(), Some(0), "{}", stderr(&o));
+    let doc: serde_json::Value = serde_json::from_slice(&o.stdout).expect("JSON");
+    assert_eq!(doc["format"], "stagewright-waveform/1");
+    let waves = doc["waveforms"].as_array().expect("waveforms");
+    assert_eq!(waves.len(), 2);
+    for (w, want) in waves.iter().zip([1.0, 2.0]) {
+        let peak = w["output_peak"].as_f64().expect("a peak");
+        assert!((peak - want).abs() <= 1e-4 * want, "{peak} vs {want}");
+        assert_eq!(w["load"].as_array().expect("load").len(), 256);
+        assert_eq!(w["time"].as_array().expect("time").len(), 256);
+        assert_eq!(w["harmonics"].as_array().expect("harmonics").len(), 10);
+        let thd = w["thd"].as_f64().expect("THD");
+        assert!(thd > 0.0 && thd < 0.01, "{thd}");
+    }
+    let o = run(
+        &[
+            "waveform",
+            "--emf",
+            "0.1,0.2,0.3",
+            "--csv",
+            "examples/line-driver-600.json",
+        ],
+        "",
+    );
+    assert_eq!(o.status.code(), Some(0), "{}", stderr(&o));
+    let text = String::from_utf8(o.stdout).expect("UTF-8");
+    assert_eq!(text.lines().count(), 1 + 3 * 256);
+    assert!(text.starts_with("emf_peak_v,output_peak_v,thd,time_s,load_v"));
+    let o = run(&["waveform", "examples/line-driver-600.json"], "");
+    assert_eq!(o.status.code(), Some(0), "{}", stderr(&o));
+    let text = String::from_utf8(o.stdout).expect("UTF-8");
+    assert!(text.contains("THD") && text.contains("clipping:"), "{text}");
+}
+
+#[test]
+fn waveform_names_the_bad_option() {
+    // Bad drives and frequencies are errors (exit 2) naming the option,
+    // the value and what is allowed; nothing panics.
+    for (args, field) in [
+        (vec!["--emf", "abc"], "--emf"),
+        (vec!["--emf", "-1"], "amplitude"),
+        (vec!["--out-peak", "0"], "thd_swing"),
+        (vec!["--emf", "0.1", "--frequency", "0"], "frequency"),
+        (vec!["--emf", "0.1", "--frequency", "1G"], "frequency"),
+    ] {
+        let mut a = vec!["waveform"];
+        a.extend(args.iter().copied());
+        a.push("examples/line-driver-600.json");
+        let o = run(&a, "");
+        assert_eq!(o.status.code(), Some(2), "{a:?}: {}", stderr(&o));
+        assert!(stderr(&o).contains(field), "{a:?}: {}", stderr(&o));
+    }
+}
+
+#[test]
+fn analyze_reports_the_distortion_limited_swing() {
+    // The large-signal section of `analyze`: in JSON, the swing at 1 % THD
+    // and its curve; left out with --small-signal-only. The line driver
+    // reaches 1 % THD near its load-line limit (within 20 %: it clips by
+    // cutoff there, softly), and the curve has 16 points.
+    let o = run(&["analyze", "--json", "examples/line-driver-600.json"], "");
+    assert_eq!(o.status.code(), Some(0), "{}", stderr(&o));
+    let doc: serde_json::Value = serde_json::from_slice(&o.stdout).expect("JSON");
+    let ls = &doc["large_signal"];
+    let swing = ls["limited_swing"].as_f64().expect("a swing");
+    let load_line = ls["load_line"]["negative"].as_f64().expect("a limit");
+    assert!(
+        (swing - load_line).abs() <= 0.2 * load_line,
+        "{swing} vs {load_line}"
+    );
+    assert_eq!(ls["thd_curve"].as_array().expect("a curve").len(), 16);
+    assert!(ls["limited_by"]
+        .as_str()
+        .expect("a mechanism")
+        .contains("cutoff"));
+    let o = run(
+        &[
+            "analyze",
+            "--json",
+            "--small-signal-only",
+            "examples/line-driver-600.json",
+        ],
+        "",
+    );
+    let doc: serde_json::Value = serde_json::from_slice(&o.stdout).expect("JSON");
+    assert!(doc.get("large_signal").is_none());
 }

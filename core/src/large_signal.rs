@@ -308,7 +308,9 @@ impl LargeSignal {
     /// # Errors
     /// The small-signal solve's.
     pub fn gain(&self, frequency: f64) -> Result<f64> {
-        Ok(self.response.at(frequency)?.voltage_gain_from_source.norm())
+        Ok(crate::complex::magnitude(
+            self.response.at(frequency)?.voltage_gain_from_source,
+        ))
     }
 
     /// The steady state under an EMF of `emf` volts peak at `frequency`

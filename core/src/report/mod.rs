@@ -86,6 +86,18 @@
 //! | `cautions[].id` | | a stable identifier such as `bias-unstable-hfe` |
 //! | `cautions[].message` | | a sentence |
 //! | `cautions[].safety` | | `true` for a caution about harm (shock, heat, a rating exceeded); a reader shows the deferral to local codes and licensed practice once when one is |
+//! | `large_signal` | | written by `analyze` (not by `design` or `check`; left out with `--small-signal-only`): the steady state under a 1 kHz sine, from the circuit engine; an `error` object instead when the stage cannot be solved in the time domain |
+//! | `large_signal.frequency` | Hz | the sine's frequency (1 kHz) |
+//! | `large_signal.max_thd` | | the THD limit of the swing, a share (0.01) |
+//! | `large_signal.load_line` | V | the load-line limits `positive` and `negative` (magnitudes), as `swing` |
+//! | `large_signal.limited_swing` | V | the largest output peak at the load (the fundamental) with THD at or under the limit; `null` when THD stays under it up to 150 % of the load-line limit |
+//! | `large_signal.limited_swing_emf` | V | the EMF peak that gives it |
+//! | `large_signal.limited_by` | | what limits it: a half clipping by `saturation` or `cutoff`, or the curvature of the exponential law |
+//! | `large_signal.clipping` | | there: each clipped `half`, its `mechanism` and the `share` of the period |
+//! | `large_signal.terminal_shift` | V | there: the mean shift of the output terminal (collector, or a follower's emitter) from its quiescent voltage |
+//! | `large_signal.ic_shift` | A | there: the mean shift of the collector current from ICQ |
+//! | `large_signal.harmonics` | V | there: harmonics 1 to 10 of the load voltage, `order`, `amplitude` (peak) and `phase_deg` (of a sine) |
+//! | `large_signal.thd_curve` | | THD against output peak: 16 points from 1 % to 150 % of the load-line limit, each `emf_peak`, `output_peak`, `thd`, `terminal_shift`, `ic_shift` |
 //!
 //! # Sweep
 //! A [`SweepTable`] holds the response at log-spaced frequencies; its
