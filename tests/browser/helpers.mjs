@@ -106,10 +106,12 @@ export async function screenshot(page, name, options = {}) {
  * `cargo build --release -p stagewright-cli`. */
 export const cliPath = process.env.STAGEWRIGHT_CLI || path.join(root, "target", "release", "stagewright");
 
-/** `stagewright analyze FILE --json`, parsed. The exit status says pass (0)
- * or fail (1); either way the report is on standard output. */
+/** `stagewright analyze FILE --json --small-signal-only`, parsed: the
+ * report the page's engine gives (the command line's large-signal section
+ * is its own). The exit status says pass (0) or fail (1); either way the
+ * report is on standard output. */
 export function cliReport(file) {
-  const r = spawnSync(cliPath, ["analyze", file, "--json"], { encoding: "utf8" });
+  const r = spawnSync(cliPath, ["analyze", file, "--json", "--small-signal-only"], { encoding: "utf8" });
   if (r.error) throw r.error;
   if (r.status !== 0 && r.status !== 1) throw new Error(`stagewright analyze ${file}: exit ${r.status}: ${r.stderr}`);
   return JSON.parse(r.stdout);
