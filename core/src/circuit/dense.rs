@@ -38,6 +38,12 @@ impl Dense {
     /// the most of the residual's extra precision.
     pub(crate) fn solve_refined(self, steps: usize) -> Option<[f64; MAX_UNKNOWNS]> {
         let lu = Lu::factor(&self)?;
+        self.solve_factored(&lu, steps)
+    }
+
+    /// [`Dense::solve_refined`] with the factorisation `lu` of this
+    /// system's matrix already made.
+    pub(crate) fn solve_factored(&self, lu: &Lu, steps: usize) -> Option<[f64; MAX_UNKNOWNS]> {
         let mut x = lu.solve(&self.b)?;
         for _ in 0..steps {
             let mut r = [0.0; MAX_UNKNOWNS];

@@ -74,6 +74,12 @@ const POINT_ITERATIONS: u32 = 60;
 const POINT_STEP_ABS: f64 = 1e-10;
 /// The relative part of the time point's step test.
 const POINT_STEP_REL: f64 = 1e-10;
+/// Newton steps (V) below which a time point's solves are refined.
+const REFINE_BELOW: f64 = 1e-6;
+/// The conductance from every node to ground of a time point's last try,
+/// S (a circuit simulator's customary GMIN): it keeps a node that the
+/// junctions alone hold, both cut off, from making the matrix singular.
+const POINT_GMIN: f64 = 1e-12;
 /// Largest number of shooting periods.
 const SHOOTING_PERIODS: u32 = 40;
 /// The steady state is found when every charge returns to its start to
@@ -300,8 +306,13 @@ impl<'a> Engine<'a> {
         q: &mut [f64],
         c: &mut [f64],
         iterations: u32,
+        gmin: f64,
     ) -> Option<PointOut> {
-        let lin = self.linear(t);
+        let mut lin = self.linear(t);
+        for i in 0..self.num.first_source {
+            lin.a[i][i] += gmin;
+        }
+        let mut last_step = f64::INFINITY;
         self.junctions(x, j);
         let nodes = self.num.first_source;
         for it in 1..=iterations {
@@ -330,7 +341,11 @@ impl<'a> Engine<'a> {
                 }
             }
             let lu = Lu::factor(&sys)?;
-            let new = lu.solve(&sys.b)?;
+            // On a retry, near the answer the solve is refined (as the DC
+            // solve's), so that an ill-conditioned network still meets the
+            // step test (the first try goes without: it is the common case).
+            let refine = iterations > POINT_ITERATIONS && last_step < REFINE_BELOW;
+            let new = sys.solve_factored(&lu, if refine { 2 } else { 0 })?;
             let limited = limit_transistors(&self.num, &new, j);
             let mut step: f64 = 0.0;
             let mut size: f64 = 0.0;
@@ -347,8 +362,89 @@ impl<'a> Engine<'a> {
                 }
                 return Some(PointOut { lu, iterations: it });
             }
+            last_step = step;
         }
         None
+    }
+
+    /// A time point with its retries: from the guess in `x`, then from
+    /// `last` with more iterations, then with a GMIN to ground. Adds the
+    /// iterations of the failed tries to `spent`.
+    #[allow(clippy::too_many_arguments)]
+    fn point_tries(
+        &self,
+        t: f64,
+        a0: f64,
+        hist: &[f64],
+        x: &mut X,
+        last: &X,
+        j: &mut [Junctions],
+        q: &mut [f64],
+        c: &mut [f64],
+        spent: &mut u32,
+    ) -> Option<PointOut> {
+        for (k, (its, gmin)) in [
+            (POINT_ITERATIONS, 0.0),
+            (8 * POINT_ITERATIONS, 0.0),
+            (8 * POINT_ITERATIONS, POINT_GMIN),
+        ]
+        .into_iter()
+        .enumerate()
+        {
+            if k > 0 {
+                *x = *last;
+            }
+            if let Some(out) = self.point(t, a0, hist, x, j, q, c, its, gmin) {
+                *spent += out.iterations;
+                return Some(out);
+            }
+            *spent += its;
+        }
+        None
+    }
+
+    /// The charges' sensitivities after a time point whose factored
+    /// Jacobian is `lu` and whose history moves by `dh(k, col)` (branch k,
+    /// state column col): S = C·(−K·∂hist/∂z), K = Bᵀ·J⁻¹·B, into `out`
+    /// (m × w, row-major).
+    fn propagate(
+        &self,
+        lu: &Lu,
+        c: &[f64],
+        kmat: &mut [f64],
+        out: &mut [f64],
+        w: usize,
+        dh: impl Fn(usize, usize) -> f64,
+    ) -> Option<()> {
+        let m = self.branches.len();
+        for k in 0..m {
+            let br = &self.branches[k];
+            let mut rhs = [0.0; MAX_UNKNOWNS];
+            if let Some(r) = self.num.index[br.a.0] {
+                rhs[r] += 1.0;
+            }
+            if let Some(r) = self.num.index[br.b.0] {
+                rhs[r] -= 1.0;
+            }
+            let y = lu.solve(&rhs)?;
+            for (r, other) in self.branches.iter().enumerate() {
+                kmat[r * m + k] = self.num.v(&y, other.a.0) - self.num.v(&y, other.b.0);
+            }
+        }
+        let mut d = [0.0; MAX_UNKNOWNS];
+        for col in 0..w {
+            for (k, dk) in d.iter_mut().enumerate().take(m) {
+                *dk = dh(k, col);
+            }
+            for r in 0..m {
+                let mut dv = 0.0;
+                for k in 0..m {
+                    dv -= kmat[r * m + k] * d[k];
+                }
+                out[r * w + col] = c[r] * dv;
+            }
+        }
+        Some(())
     }
 
     /// The charges and capacitances at `x`.
@@ -405,7 +501,6 @@ impl<'a> Engine<'a> {
         }
         let mut s_new = vec![0.0; m * w];
         let mut kmat = vec![0.0; m * m];
-        let mut dh = vec![0.0; m];
         let mut j = vec![Junctions { vbe: 0.0, vbc: 0.0 }; self.transistors];
         let mut iterations = 0;
         rec.x.clear();
@@ -427,58 +522,82 @@ impl<'a> Engine<'a> {
                 }
             }
             // Should the guess lead Newton astray (a corner of a clipped
-            // waveform), the point is solved again from the last one, with
-            // more iterations.
-            let out = match self.point(t, a0, &hist, x, &mut j, &mut q, &mut c, POINT_ITERATIONS) {
-                Some(out) => out,
-                None => {
-                    iterations += POINT_ITERATIONS;
-                    *x = last;
-                    self.point(
-                        t,
-                        a0,
-                        &hist,
-                        x,
-                        &mut j,
-                        &mut q,
-                        &mut c,
-                        8 * POINT_ITERATIONS,
-                    )
-                    .ok_or_else(|| no_convergence("steady state", iterations, f64::NAN))?
-                }
-            };
-            iterations += out.iterations;
-            // The sensitivities: J·∂x/∂z = −B·∂hist/∂z (B the branches'
-            // incidence), so the branch voltages move by ∂v/∂z =
-            // −K·∂hist/∂z with K = Bᵀ·J⁻¹·B (m solves, not 2m), and then
-            // ∂q/∂z = C·∂v/∂z.
-            for k in 0..m * usize::from(sensitivities) {
-                let br = &self.branches[k];
-                let mut rhs = [0.0; MAX_UNKNOWNS];
-                if let Some(r) = self.num.index[br.a.0] {
-                    rhs[r] += 1.0;
-                }
-                if let Some(r) = self.num.index[br.b.0] {
-                    rhs[r] -= 1.0;
-                }
-                let y = out
-                    .lu
-                    .solve(&rhs)
-                    .ok_or_else(|| no_convergence("steady state", iterations, f64::NAN))?;
-                for (r, other) in self.branches.iter().enumerate() {
-                    kmat[r * m + k] = self.num.v(&y, other.a.0) - self.num.v(&y, other.b.0);
-                }
-            }
-            for col in 0..w * usize::from(sensitivities) {
-                for k in 0..m {
-                    dh[k] = (-4.0 * s1[k * w + col] + s2[k * w + col]) / (2.0 * h);
-                }
-                for r in 0..m {
-                    let mut dv = 0.0;
-                    for k in 0..m {
-                        dv -= kmat[r * m + k] * dh[k];
+            // waveform), the point is solved again from the last one with
+            // more iterations, then with a GMIN to ground, and last the
+            // step is divided into 4, 16 or 64 backward-Euler steps.
+            let mut spent = 0;
+            let solved =
+                self.point_tries(t, a0, &hist, x, &last, &mut j, &mut q, &mut c, &mut spent);
+            iterations += spent;
+            let current_a0;
+            match solved {
+                Some(out) => {
+                    // The sensitivities: J·∂x/∂z = −B·∂hist/∂z (B the
+                    // branches' incidence), so the branch voltages move by
+                    // ∂v/∂z = −K·∂hist/∂z with K = Bᵀ·J⁻¹·B (m solves, not
+                    // 2m), and then ∂q/∂z = C·∂v/∂z.
+                    if sensitivities {
+                        self.propagate(&out.lu, &c, &mut kmat, &mut s_new, w, |k, col| {
+                            (-4.0 * s1[k * w + col] + s2[k * w + col]) / (2.0 * h)
+                        })
+                        .ok_or_else(|| no_convergence("steady state", iterations, f64::NAN))?;
                     }
-                    s_new[r * w + col] = c[r] * dv;
+                    current_a0 = (a0, hist.clone());
+                }
+                None => {
+                    let mut done = None;
+                    for parts in [4usize, 16, 64] {
+                        let d = h / parts as f64;
+                        *x = last;
+                        let mut qs = q1.clone();
+                        let mut ss = s1.clone();
+                        let mut ok = true;
+                        let mut hs = vec![0.0; m];
+                        for i in 1..=parts {
+                            for k in 0..m {
+                                hs[k] = -qs[k] / d;
+                            }
+                            let guess = *x;
+                            let ti = t - h + i as f64 * d;
+                            let mut spent = 0;
+                            let out = self.point_tries(
+                                ti,
+                                1.0 / d,
+                                &hs,
+                                x,
+                                &guess,
+                                &mut j,
+                                &mut q,
+                                &mut c,
+                                &mut spent,
+                            );
+                            iterations += spent;
+                            let Some(out) = out else {
+                                ok = false;
+                                break;
+                            };
+                            if sensitivities {
+                                let prev = ss.clone();
+                                self.propagate(&out.lu, &c, &mut kmat, &mut ss, w, |k, col| {
+                                    -prev[k * w + col] / d
+                                })
+                                .ok_or_else(|| {
+                                    no_convergence("steady state", iterations, f64::NAN)
+                                })?;
+                            }
+                            if i < parts {
+                                qs.copy_from_slice(&q);
+                            }
+                        }
+                        if ok {
+                            done = Some((1.0 / d, hs, ss));
+                            break;
+                        }
+                    }
+                    let (a0s, hs, ss) =
+                        done.ok_or_else(|| no_convergence("steady state", iterations, f64::NAN))?;
+                    s_new.copy_from_slice(&ss);
+                    current_a0 = (a0s, hs);
                 }
             }
             let row = rec.x.len();
@@ -486,7 +605,7 @@ impl<'a> Engine<'a> {
                 rec.current.push(vec![0.0; m]);
             }
             for k in 0..m {
-                rec.current[row][k] = a0 * q[k] + hist[k];
+                rec.current[row][k] = current_a0.0 * q[k] + current_a0.1[k];
             }
             rec.x.push(*x);
             core::mem::swap(&mut q2, &mut q1);
@@ -895,6 +1014,7 @@ pub fn transient(net: &Netlist, o: &TransientOptions) -> Result<TransientRun> {
             &mut q,
             &mut c,
             POINT_ITERATIONS,
+            0.0,
         ) else {
             // A point that does not converge is tried again at a quarter of the step.
             if h * 0.25 < h_min {
