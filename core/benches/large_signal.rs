@@ -7,7 +7,10 @@
 //! - `steady_state_clipping`: the same at 0.6 V, clipping both halves;
 //! - `thd_curve_16`: the THD curve, 16 amplitudes from 1 % to 150 % of
 //!   the load-line limit;
-//! - `limited_swing`: the curve and the search for the 1 % THD swing.
+//! - `limited_swing`: the curve and the search for the 1 % THD swing;
+//! - `thd_at_output`: THD at a required output peak (2 V), the EMF found
+//!   for it: what one check of a THD requirement costs, at each vertex of
+//!   a worst case or each Monte Carlo sample.
 //!
 //! Run: `cargo bench -p stagewright --bench large_signal -- --warm-up-time 1 --measurement-time 5`
 
@@ -40,6 +43,12 @@ fn benches(c: &mut Criterion) {
         b.iter(|| {
             let l = ls.limited_swing(black_box(0.01), 1e3).expect("solves");
             black_box(l.output_peak)
+        })
+    });
+    g.bench_function("thd_at_output", |b| {
+        b.iter(|| {
+            let w = ls.at_output(black_box(2.0), 1e3).expect("reaches it");
+            black_box(w.thd)
         })
     });
     g.finish();
