@@ -181,17 +181,25 @@ pub fn run(file: &str, drive: Drive, frequency: &str, csv: bool, json_out: bool)
             o.push_str("  harmonic  amplitude        dBc   phase\n");
             let fund = w.harmonics[0].amplitude;
             for h in &w.harmonics {
-                let dbc = if fund > 0.0 && h.amplitude > 0.0 {
+                // Below −180 dBc a harmonic is the solve's rounding, not a figure.
+                let dbc = if fund > 0.0 && h.amplitude > 1e-9 * fund {
                     format!("{:9.1}", 20.0 * (h.amplitude / fund).log10())
                 } else {
                     format!("{:>9}", "-")
                 };
-                o.push_str(&format!(
-                    "  {:>8}  {:>11}  {dbc}  {:6.1}°\n",
-                    h.order,
-                    format_si(h.amplitude, "V"),
-                    h.phase
-                ));
+                if fund > 0.0 && h.amplitude > 1e-9 * fund {
+                    o.push_str(&format!(
+                        "  {:>8}  {:>11}  {dbc}  {:6.1}°\n",
+                        h.order,
+                        format_si(h.amplitude, "V"),
+                        h.phase
+                    ));
+                } else {
+                    o.push_str(&format!(
+                        "  {:>8}  {:>11}  {dbc}  {:>7}\n",
+                        h.order, "< -180 dBc", "-"
+                    ));
+                }
             }
         }
         out(&o);
@@ -208,7 +216,7 @@ pub struct Section {
 }
 
 impl Section {
-    /// Solves it for `design`; `None` when the stage has no swing to
+    /// Solves it for `design`; an error when the stage has no swing to
     /// speak of (not biased in the active region) or does not solve.
     pub fn new(design: &Design) -> Result<Section, Error> {
         let ls = LargeSignal::new(&design.stage)?;
@@ -222,6 +230,10 @@ impl Section {
 
     fn mechanism_text(&self) -> String {
         match (self.limit.output_peak, self.limit.mechanism()) {
+            (None, _) if self.limit.drive_limited => format!(
+                "THD stays under the limit as far as the stage can be driven (an EMF of ten times the supply gives {} peak)",
+                format_si(self.limit.waveform.output_peak, "V")
+            ),
             (None, _) => {
                 String::from("THD stays under the limit up to 150 % of the load-line limit")
             }
@@ -266,7 +278,7 @@ impl Section {
             self.mechanism_text()
         ));
         o.push_str(&format!(
-            "  there: output terminal mean shift {}, collector current {}\n",
+            "  there: output terminal mean shift {}, collector current mean shift {}\n",
             format_si(l.waveform.terminal_shift, "V"),
             format_si(l.waveform.ic_shift, "A")
         ));
@@ -283,6 +295,7 @@ impl Section {
             "limited_swing": l.output_peak,
             "limited_swing_emf": l.waveform.emf,
             "limited_by": self.mechanism_text(),
+            "drive_limited": l.drive_limited,
             "clipping": clipping_json(&l.waveform),
             "terminal_shift": l.waveform.terminal_shift,
             "ic_shift": l.waveform.ic_shift,

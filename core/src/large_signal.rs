@@ -17,8 +17,9 @@
 //! so no window is needed. The output peak is the fundamental's amplitude
 //! at the load. Clipping is read sample by sample in the transistor's NPN
 //! frame: *saturation* where the collector junction is forward biased
-//! enough to inject (its transport term IS·e^(vBC/VT) at least 1 % of the
-//! emitter junction's, i.e. vCE' ≤ VT·ln 100 inside the device), *cutoff*
+//! enough to inject (vBC > 0 and its transport term IS·e^(vBC/VT) at least
+//! 1 % of the emitter junction's, i.e. vCE' ≤ VT·ln 100 inside the
+//! device), *cutoff*
 //! where the collector current is below 1 % of ICQ; the half is the sign
 //! of the load voltage there.
 
@@ -193,6 +194,10 @@ pub struct LimitedSwing {
     pub waveform: Waveform,
     /// The THD curve it was bracketed on.
     pub curve: Vec<ThdPoint>,
+    /// Whether the curve ended at the largest EMF allowed (ten times the
+    /// supply) short of 150 % of the load-line limit: with `output_peak`
+    /// `None`, THD stayed under the limit as far as the stage can be driven.
+    pub drive_limited: bool,
 }
 
 impl LimitedSwing {
@@ -230,10 +235,13 @@ fn out_of_range(field: &str, value: f64, unit: &'static str, allowed: &str) -> E
     )
 }
 
-/// The harmonics 0 (the mean, as amplitude) to [`HARMONICS`] of one
-/// period of samples.
+/// The mean and harmonics 1 to [`HARMONICS`] of one period of samples
+/// (none, and a mean of 0, for no samples).
 pub fn harmonics(samples: &[f64]) -> (f64, Vec<Harmonic>) {
     let n = samples.len();
+    if n == 0 {
+        return (0.0, Vec::new());
+    }
     let mean = samples.iter().sum::<f64>() / n as f64;
     let mut out = Vec::with_capacity(HARMONICS);
     for k in 1..=HARMONICS {
@@ -256,9 +264,11 @@ pub fn harmonics(samples: &[f64]) -> (f64, Vec<Harmonic>) {
 }
 
 /// THD of harmonics 2 to [`HARMONICS`] over the fundamental (0 when the
-/// fundamental is 0).
+/// fundamental is 0, or there are none).
 pub fn thd(h: &[Harmonic]) -> f64 {
-    let f = h[0].amplitude;
+    let Some(f) = h.first().map(|x| x.amplitude) else {
+        return 0.0;
+    };
     if f <= 0.0 {
         return 0.0;
     }
@@ -317,8 +327,8 @@ impl LargeSignal {
     /// hertz, at `samples` per period ([`SAMPLES`] is the default).
     ///
     /// # Errors
-    /// [`ErrorKind::OutOfRange`] naming `amplitude` (0 to ten times the
-    /// supply) or `frequency` (above 0, to a tenth of fT); the engine's
+    /// [`ErrorKind::OutOfRange`] naming `amplitude` (above 0, to ten times
+    /// the supply) or `frequency` (above 0, to a tenth of fT); the engine's
     /// when the steady state does not converge.
     pub fn waveform(&self, emf: f64, frequency: f64, samples: usize) -> Result<Waveform> {
         self.waveform_from(emf, frequency, samples, None)
@@ -339,12 +349,12 @@ impl LargeSignal {
         seed: Option<&Waveform>,
     ) -> Result<Waveform> {
         let s = &self.stage;
-        if !(emf.is_finite() && emf >= 0.0 && emf <= 10.0 * s.supply) {
+        if !(emf.is_finite() && emf > 0.0 && emf <= 10.0 * s.supply) {
             return Err(out_of_range(
                 "amplitude",
                 emf,
                 "V",
-                "an EMF peak from 0 V to ten times the supply",
+                "an EMF peak above 0 V, up to ten times the supply",
             ));
         }
         let f_max = 0.1 * s.transistor.ft;
@@ -388,7 +398,7 @@ impl LargeSignal {
             let vbe = sign * (vb - p.voltages[nodes.emitter.0][k]);
             let vbc = sign * (vb - p.voltages[nodes.collector.0][k]);
             let half = usize::from(load[k] < 0.0);
-            if vbe - vbc <= sat_margin {
+            if vbc > 0.0 && vbe - vbc <= sat_margin {
                 counts[half][0] += 1;
             } else if sign * ic[k] < 0.01 * self.op.ic {
                 counts[half][1] += 1;
@@ -436,7 +446,8 @@ impl LargeSignal {
     /// The THD curve at `frequency`: [`CURVE_POINTS`] output peaks spaced
     /// geometrically over [`CURVE_SPAN`] of the load-line limit (the
     /// smaller of the two, [`Swing::symmetric`]), each driven by the EMF
-    /// that the small-signal gain says gives it.
+    /// that the small-signal gain says gives it; fewer when that EMF would
+    /// pass ten times the supply (the curve then ends at that EMF).
     ///
     /// # Errors
     /// [`ErrorKind::Inconsistent`] naming `swing` when the stage has no
@@ -467,9 +478,15 @@ impl LargeSignal {
         for k in 0..CURVE_POINTS {
             // formula: share_k = lo·(hi/lo)^(k/(K−1))
             let share = lo * libm::pow(hi / lo, k as f64 / (CURVE_POINTS - 1) as f64);
-            let emf = libm::fmin(share * limit / g, 10.0 * self.stage.supply);
+            let cap = 10.0 * self.stage.supply;
+            let emf = libm::fmin(share * limit / g, cap);
             let w = self.waveform_from(emf, frequency, SAMPLES, out.last())?;
             out.push(w);
+            // At the largest EMF allowed the curve ends: more points would
+            // repeat this one.
+            if emf >= cap {
+                break;
+            }
         }
         Ok(out)
     }
@@ -492,6 +509,7 @@ impl LargeSignal {
         }
         let mut points = self.curve_points(frequency)?;
         let curve: Vec<ThdPoint> = points.iter().map(ThdPoint::from).collect();
+        let drive_limited = points.len() < CURVE_POINTS;
         let Some(first_over) = points.iter().position(|w| w.thd > max_thd) else {
             let waveform = points.pop().expect("the curve has points");
             return Ok(LimitedSwing {
@@ -500,22 +518,43 @@ impl LargeSignal {
                 output_peak: None,
                 waveform,
                 curve,
+                drive_limited,
             });
         };
         let f = |w: &Waveform| libm::log(libm::fmax(w.thd, 1e-300) / max_thd);
         let mut hi = points.swap_remove(first_over);
         let mut lo = if first_over == 0 {
             // Under the first point: the limit is at a still smaller drive;
-            // THD falls in proportion to the drive there.
-            let emf = hi.emf * libm::fmin(0.5, max_thd / hi.thd);
-            self.waveform(emf, frequency, SAMPLES)?
+            // THD falls with the drive there (halved until it is under).
+            let mut emf = hi.emf * libm::fmin(0.5, max_thd / hi.thd);
+            let mut w = self.waveform(emf, frequency, SAMPLES)?;
+            let mut tries = 0;
+            while w.thd > max_thd {
+                tries += 1;
+                if tries > 20 {
+                    return Err(Error::inconsistent(
+                        "max_thd",
+                        alloc::format!(
+                            "THD stays above {} % however small the drive (it is {:.3} % at an EMF of {:.3e} V)",
+                            100.0 * max_thd,
+                            100.0 * w.thd,
+                            emf
+                        ),
+                    ));
+                }
+                emf *= 0.25;
+                w = self.waveform(emf, frequency, SAMPLES)?;
+            }
+            w
         } else {
             points.swap_remove(first_over - 1)
         };
         let (mut f_lo, mut f_hi) = (f(&lo), f(&hi));
         let mut side = 0i8;
         for _ in 0..40 {
-            if libm::fabs(f_lo) <= 1e-3 {
+            // The stopping test reads the true value at lo (f_lo may have
+            // been halved by the Illinois rule).
+            if libm::fabs(f(&lo)) <= 1e-3 {
                 break;
             }
             let (a, b) = (libm::log(lo.emf), libm::log(hi.emf));
@@ -551,17 +590,21 @@ impl LargeSignal {
             output_peak: Some(lo.output_peak),
             waveform: lo,
             curve,
+            drive_limited,
         })
     }
 
     /// The steady state whose output peak (the fundamental at the load)
-    /// is `peak` volts at `frequency`: the EMF found by successive
-    /// correction from the small-signal gain, to 0.01 %.
+    /// is `peak` volts at `frequency`, to 0.01 %: the EMF found by the
+    /// secant on log output against log EMF from the small-signal gain's
+    /// guess, bracketed once the target is passed (a bisection step when
+    /// the secant leaves the bracket).
     ///
     /// # Errors
     /// [`ErrorKind::OutOfRange`] naming `thd_swing` when the stage cannot
-    /// deliver that peak (with the most it delivers); the
-    /// [`LargeSignal::waveform`] errors.
+    /// deliver that peak (with the most it was seen to deliver);
+    /// [`ErrorKind::NoConvergence`] naming `thd_swing` when the search does
+    /// not settle; the [`LargeSignal::waveform`] errors.
     pub fn at_output(&self, peak: f64, frequency: f64) -> Result<Waveform> {
         if !(peak.is_finite() && peak > 0.0) {
             return Err(out_of_range(
@@ -573,34 +616,72 @@ impl LargeSignal {
         }
         let g = self.gain(frequency)?;
         let cap = 10.0 * self.stage.supply;
+        let target = libm::log(peak);
+        // (log EMF, log output) below and above the target, once seen.
+        let mut below: Option<(f64, f64)> = None;
+        let mut above: Option<(f64, f64)> = None;
+        let mut most: f64 = 0.0;
         let mut emf = libm::fmin(peak / g, cap);
-        let mut best = self.waveform(emf, frequency, SAMPLES)?;
-        for _ in 0..30 {
-            let ratio = peak / best.output_peak;
-            if libm::fabs(ratio - 1.0) <= 1e-4 {
-                return Ok(best);
+        let mut prev: Option<(f64, f64)> = None;
+        for _ in 0..60 {
+            let w = self.waveform(emf, frequency, SAMPLES)?;
+            most = most.max(w.output_peak);
+            if libm::fabs(w.output_peak / peak - 1.0) <= 1e-4 {
+                return Ok(w);
             }
-            let next = libm::fmin(emf * ratio.clamp(0.25, 4.0), cap);
-            if next == emf {
+            let point = (libm::log(emf), libm::log(libm::fmax(w.output_peak, 1e-300)));
+            if w.output_peak < peak {
+                below = Some(point);
+            } else {
+                above = Some(point);
+            }
+            // The secant through this point and the previous one.
+            let mut next = match prev {
+                Some((x0, y0)) if point.1 != y0 => {
+                    point.0 + (target - point.1) * (point.0 - x0) / (point.1 - y0)
+                }
+                _ => point.0 + (target - point.1),
+            };
+            match (below, above) {
+                (Some((xl, _)), Some((xh, _))) => {
+                    let inside = next > xl.min(xh) && next < xl.max(xh) && next.is_finite();
+                    if !inside {
+                        next = 0.5 * (xl + xh);
+                    }
+                }
+                _ => {
+                    // Not yet bracketed: at most a factor of 4 a step.
+                    next = next.clamp(point.0 - libm::log(4.0), point.0 + libm::log(4.0));
+                    if !next.is_finite() {
+                        next = point.0 + libm::log(2.0);
+                    }
+                }
+            }
+            prev = Some(point);
+            let next_emf = libm::fmin(libm::exp(next), cap);
+            if above.is_none() && emf >= cap && next_emf >= cap {
+                // The most drive allowed and still short of the target.
                 break;
             }
-            let w = self.waveform(next, frequency, SAMPLES)?;
-            if w.output_peak <= best.output_peak && ratio > 1.0 {
-                // More drive gives no more output: the stage is at its limit.
-                best = w;
-                break;
-            }
-            emf = next;
-            best = w;
+            emf = next_emf;
         }
-        Err(out_of_range(
+        if above.is_none() {
+            return Err(out_of_range(
+                "thd_swing",
+                peak,
+                "V",
+                &alloc::format!(
+                    "an output peak the stage delivers (it reaches about {:.3} V at an EMF of ten times the supply)",
+                    most
+                ),
+            ));
+        }
+        Err(Error::new(
             "thd_swing",
-            peak,
-            "V",
-            &alloc::format!(
-                "an output peak the stage delivers (it reaches about {:.3} V)",
-                best.output_peak
-            ),
+            ErrorKind::NoConvergence {
+                iterations: 60,
+                residual: f64::NAN,
+            },
         ))
     }
 }
@@ -691,11 +772,11 @@ mod tests {
             let want2 = bessel_i(2, x) / bessel_i(1, x);
             let want3 = bessel_i(3, x) / bessel_i(1, x);
             assert!(
-                (hd2 - want2).abs() <= 1e-3 * want2,
+                (hd2 - want2).abs() <= 1e-6 * want2,
                 "{v}: HD2 {hd2} vs {want2}"
             );
             assert!(
-                (hd3 - want3).abs() <= 2e-3 * want3,
+                (hd3 - want3).abs() <= 2e-6 * want3,
                 "{v}: HD3 {hd3} vs {want3}"
             );
             if v == 1e-3 {
@@ -763,11 +844,13 @@ mod tests {
                     let peak = i.iter().fold(0.0f64, |m, x| m.max(x.abs()));
                     let mean = i.iter().sum::<f64>() / i.len() as f64;
                     // Below 1e-9 of the peak, the floor of double precision:
-                    // the charge (at most C·supply) is held to 16 ε of itself
-                    // (the engine's return test), a mean of 4·that·f/2 over
-                    // the BDF2 sum; it matters only for a capacitor that
-                    // carries next to nothing (the common base's base
-                    // capacitor, 80 nA peak on 10 µF).
+                    // a charge (at most C·supply) is resolved to a few ε of
+                    // itself, a mean of about 32 ε·C·V·f over the BDF2 sum.
+                    // The engine pursues that while Newton gains (its
+                    // guaranteed bound is looser, 1e-10 V across C: the
+                    // property test checks that one); it matters only for a
+                    // capacitor that carries next to nothing (the common
+                    // base's base capacitor, 80 nA peak on 10 µF).
                     let floor = 32.0 * f64::EPSILON * farads * stage.supply * 1e3;
                     assert!(
                         mean.abs() <= 1e-9 * peak + floor,

@@ -519,8 +519,9 @@ proptest! {
         // and THD is finite, with THD ≥ 0 and the load's mean within 1e-6
         // of its peak of zero (it is AC coupled; the shooting leaves 1e-10
         // of each charge's swing), or a typed error
-        // naming its field. 48 cases (each a full shooting solve at 1 kHz;
-        // the run stays under a minute in a debug build).
+        // naming its field. 512 cases (each a full shooting solve at 1 kHz;
+        // about 10 s). Typed errors are about 1.4 % of drives over 2 × 2048
+        // cases (stages slammed between cutoff and deep saturation).
         let mut s = s;
         if ideal {
             s.parts.c_in = None;

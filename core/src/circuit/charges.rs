@@ -240,6 +240,16 @@ mod tests {
                 "{c_bc} vs {}",
                 ss.c_mu
             );
+            // And independently of how either is computed: the charges'
+            // total capacitance is gm/(2π·fT), the definition of fT
+            // (Gray & Meyer ch. 1), to 1e-6 (finite differences of 1 µV).
+            let h = 1e-6;
+            let dq = |f: &dyn Fn(f64) -> f64, v: f64| (f(v + h) - f(v - h)) / (2.0 * h);
+            let be = |v: f64| ch.base_emitter(&op.device, v).0;
+            let bc = |v: f64| ch.base_collector(v).0;
+            let total = dq(&be, op.vbe_junction) + dq(&bc, op.vbc_junction);
+            let want = ss.gm / (2.0 * core::f64::consts::PI * s.transistor.ft);
+            assert!((total - want).abs() <= 1e-6 * want, "{total} vs {want}");
         }
     }
 }

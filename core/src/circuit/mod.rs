@@ -42,12 +42,18 @@
 //! resistors, capacitors and transconductances), one complex solve per
 //! frequency ([`solve_ac`]).
 //!
-//! This is the engine's first step: the stages' DC netlists
-//! ([`dc_netlist`]) solve to the operating point of
-//! [`crate::OperatingPoint::solve`], and their small-signal netlists
+//! # Transient and periodic steady state
+//! The same netlist with each transistor's charges ([`Charges`]), a sine
+//! source and ideal capacitors: the charge-based BDF2 transient
+//! ([`transient`]) and the shooting steady state
+//! ([`periodic_steady_state`]), as the `transient` module's docs describe.
+//!
+//! The stages' DC netlists ([`dc_netlist`]) solve to the operating point
+//! of [`crate::OperatingPoint::solve`], and their small-signal netlists
 //! ([`ac_netlist`]) to the response of [`crate::AcNetwork`] (tests hold
-//! them together to 1e-9); the analyses move onto it next, then the
-//! transient and the steady state.
+//! them together to 1e-9); the whole netlist of [`stage_netlist`] carries
+//! the large-signal analysis ([`crate::LargeSignal`]). The small-signal
+//! analyses move onto the engine next.
 
 mod ac;
 mod charges;

@@ -90,14 +90,15 @@
 //! | `large_signal.frequency` | Hz | the sine's frequency (1 kHz) |
 //! | `large_signal.max_thd` | | the THD limit of the swing, a share (0.01) |
 //! | `large_signal.load_line` | V | the load-line limits `positive` and `negative` (magnitudes), as `swing` |
-//! | `large_signal.limited_swing` | V | the largest output peak at the load (the fundamental) with THD at or under the limit; `null` when THD stays under it up to 150 % of the load-line limit |
+//! | `large_signal.limited_swing` | V | the largest output peak at the load (the fundamental) with THD at or under the limit; `null` when THD stays under it up to 150 % of the load-line limit, or as far as the stage can be driven |
 //! | `large_signal.limited_swing_emf` | V | the EMF peak that gives it |
-//! | `large_signal.limited_by` | | what limits it: a half clipping by `saturation` or `cutoff`, or the curvature of the exponential law |
+//! | `large_signal.limited_by` | | a sentence saying what limits it: a half clipping by saturation or cutoff, the curvature of the exponential law, or (with `limited_swing` `null`) how far the curve went |
+//! | `large_signal.drive_limited` | | `true` when the curve ended at an EMF of ten times the supply, short of 150 % of the load-line limit |
 //! | `large_signal.clipping` | | there: each clipped `half`, its `mechanism` and the `share` of the period |
 //! | `large_signal.terminal_shift` | V | there: the mean shift of the output terminal (collector, or a follower's emitter) from its quiescent voltage |
 //! | `large_signal.ic_shift` | A | there: the mean shift of the collector current from ICQ |
 //! | `large_signal.harmonics` | V | there: harmonics 1 to 10 of the load voltage, `order`, `amplitude` (peak) and `phase_deg` (of a sine) |
-//! | `large_signal.thd_curve` | | THD against output peak: 16 points from 1 % to 150 % of the load-line limit, each `emf_peak`, `output_peak`, `thd`, `terminal_shift`, `ic_shift` |
+//! | `large_signal.thd_curve` | | THD against output peak: 16 points from 1 % to 150 % of the load-line limit (fewer when `drive_limited`), each `emf_peak`, `output_peak`, `thd`, `terminal_shift`, `ic_shift` |
 //!
 //! # Sweep
 //! A [`SweepTable`] holds the response at log-spaced frequencies; its
