@@ -213,6 +213,9 @@ pub struct Section {
     limit: LimitedSwing,
     positive: f64,
     negative: f64,
+    /// The design's required swing (`min_swing`) and the steady state
+    /// there, or why there is none.
+    at_required: Option<(f64, Result<Waveform, Error>)>,
 }
 
 impl Section {
@@ -221,10 +224,16 @@ impl Section {
     pub fn new(design: &Design) -> Result<Section, Error> {
         let ls = LargeSignal::new(&design.stage)?;
         let limit = ls.limited_swing(DEFAULT_MAX_THD, DEFAULT_FREQUENCY)?;
+        let at_required = design
+            .requirements
+            .min_swing
+            .filter(|v| *v > 0.0)
+            .map(|v| (v, ls.at_output(v, DEFAULT_FREQUENCY)));
         Ok(Section {
             limit,
             positive: ls.swing().positive,
             negative: ls.swing().negative,
+            at_required,
         })
     }
 
@@ -282,6 +291,19 @@ impl Section {
             format_si(l.waveform.terminal_shift, "V"),
             format_si(l.waveform.ic_shift, "A")
         ));
+        match &self.at_required {
+            Some((v, Ok(w))) => o.push_str(&format!(
+                "  THD at the required swing  {:.3} % at {} peak (clipping: {})\n",
+                100.0 * w.thd,
+                format_si(*v, "V"),
+                clipping_text(w)
+            )),
+            Some((v, Err(e))) => o.push_str(&format!(
+                "  THD at the required swing  not found at {} peak ({e})\n",
+                format_si(*v, "V")
+            )),
+            None => {}
+        }
         o
     }
 
@@ -295,6 +317,15 @@ impl Section {
             "limited_swing": l.output_peak,
             "limited_swing_emf": l.waveform.emf,
             "limited_by": self.mechanism_text(),
+            "at_required_swing": match &self.at_required {
+                Some((v, Ok(w))) => json!({
+                    "swing": v, "thd": w.thd, "emf_peak": w.emf, "clipping": clipping_json(w),
+                }),
+                Some((v, Err(e))) => json!({
+                    "swing": v, "error": { "field": e.field(), "message": e.to_string() },
+                }),
+                None => Value::Null,
+            },
             "drive_limited": l.drive_limited,
             "clipping": clipping_json(&l.waveform),
             "terminal_shift": l.waveform.terminal_shift,

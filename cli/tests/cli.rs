@@ -1451,6 +1451,11 @@ fn analyze_reports_the_distortion_limited_swing() {
         .as_str()
         .expect("a mechanism")
         .contains("cutoff"));
+    // THD at the design's min_swing (2 V): under the 1 % limit, since
+    // 2 V is under the 1 % swing.
+    assert_eq!(ls["at_required_swing"]["swing"].as_f64(), Some(2.0));
+    let thd = ls["at_required_swing"]["thd"].as_f64().expect("a THD");
+    assert!(thd > 0.0 && thd < 0.01, "{thd}");
     let o = run(
         &[
             "analyze",

@@ -93,6 +93,7 @@
 //! | `large_signal.limited_swing` | V | the largest output peak at the load (the fundamental) with THD at or under the limit; `null` when THD stays under it up to 150 % of the load-line limit, or as far as the stage can be driven |
 //! | `large_signal.limited_swing_emf` | V | the EMF peak that gives it |
 //! | `large_signal.limited_by` | | a sentence saying what limits it: a half clipping by saturation or cutoff, the curvature of the exponential law, or (with `limited_swing` `null`) how far the curve went |
+//! | `large_signal.at_required_swing` | | with a `min_swing` requirement: THD at that output peak, `swing`, `thd`, `emf_peak` and `clipping` (or an `error` when the stage cannot deliver it); else `null` |
 //! | `large_signal.drive_limited` | | `true` when the curve ended at an EMF of ten times the supply, short of 150 % of the load-line limit |
 //! | `large_signal.clipping` | | there: each clipped `half`, its `mechanism` and the `share` of the period |
 //! | `large_signal.terminal_shift` | V | there: the mean shift of the output terminal (collector, or a follower's emitter) from its quiescent voltage |
