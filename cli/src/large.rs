@@ -196,8 +196,8 @@ pub fn run(file: &str, drive: Drive, frequency: &str, csv: bool, json_out: bool)
                     ));
                 } else {
                     o.push_str(&format!(
-                        "  {:>8}  {:>11}  {dbc}  {:>7}\n",
-                        h.order, "< -180 dBc", "-"
+                        "  {:>8}  {:>11}  {:>9}  {:>7}\n",
+                        h.order, "-", "< -180", "-"
                     ));
                 }
             }
