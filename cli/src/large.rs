@@ -182,16 +182,12 @@ pub fn run(file: &str, drive: Drive, frequency: &str, csv: bool, json_out: bool)
             let fund = w.harmonics[0].amplitude;
             for h in &w.harmonics {
                 // Below −180 dBc a harmonic is the solve's rounding, not a figure.
-                let dbc = if fund > 0.0 && h.amplitude > 1e-9 * fund {
-                    format!("{:9.1}", 20.0 * (h.amplitude / fund).log10())
-                } else {
-                    format!("{:>9}", "-")
-                };
                 if fund > 0.0 && h.amplitude > 1e-9 * fund {
                     o.push_str(&format!(
-                        "  {:>8}  {:>11}  {dbc}  {:6.1}°\n",
+                        "  {:>8}  {:>11}  {:9.1}  {:6.1}°\n",
                         h.order,
                         format_si(h.amplitude, "V"),
+                        20.0 * (h.amplitude / fund).log10(),
                         h.phase
                     ));
                 } else {

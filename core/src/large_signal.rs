@@ -369,18 +369,16 @@ impl LargeSignal {
         let (net, nodes) = stage_netlist(s, &self.op.device, self.charges, emf, frequency);
         let seed =
             seed.filter(|w| w.frequency == frequency && w.time.len() == samples && w.emf > 0.0);
-        let from = seed.map(|w| (crate::circuit::Periodic::seed(&w.state), emf / w.emf));
-        let p = periodic_steady_state_from(
+        let mut p = periodic_steady_state_from(
             &net,
             frequency,
             samples,
-            from.as_ref().map(|(p, r)| (p, *r)),
+            seed.map(|w| (w.state.as_slice(), emf / w.emf)),
         )?;
-        let v = |node: crate::circuit::Node| p.voltages[node.0].clone();
-        let load = v(nodes.output);
+        let load = core::mem::take(&mut p.voltages[nodes.output.0]);
         let (load_mean, harmonics) = harmonics(&load);
         let thd = thd(&harmonics);
-        let ic = p.collector_currents[0].clone();
+        let ic = core::mem::take(&mut p.collector_currents[0]);
         let n = load.len() as f64;
         let terminal_q = match nodes.terminal {
             t if t == nodes.collector => self.op.vc,
@@ -419,16 +417,23 @@ impl LargeSignal {
                 }
             }
         }
+        let mut v = |node: crate::circuit::Node| core::mem::take(&mut p.voltages[node.0]);
+        let (input, base, emitter, collector) = (
+            v(nodes.input),
+            v(nodes.base),
+            v(nodes.emitter),
+            v(nodes.collector),
+        );
         Ok(Waveform {
             emf,
             frequency,
-            time: p.time.clone(),
+            time: p.time,
             output_peak: harmonics[0].amplitude,
             load,
-            input: v(nodes.input),
-            base: v(nodes.base),
-            emitter: v(nodes.emitter),
-            collector: v(nodes.collector),
+            input,
+            base,
+            emitter,
+            collector,
             collector_current: ic,
             harmonics,
             load_mean,
@@ -437,7 +442,7 @@ impl LargeSignal {
             ic_shift,
             clipping,
             periods: p.periods,
-            state: p.start.clone(),
+            state: p.start,
         })
     }
 }
@@ -475,10 +480,10 @@ impl LargeSignal {
         }
         let (lo, hi) = CURVE_SPAN;
         let mut out = Vec::with_capacity(CURVE_POINTS);
+        let cap = 10.0 * self.stage.supply;
         for k in 0..CURVE_POINTS {
             // formula: share_k = lo·(hi/lo)^(k/(K−1))
             let share = lo * libm::pow(hi / lo, k as f64 / (CURVE_POINTS - 1) as f64);
-            let cap = 10.0 * self.stage.supply;
             let emf = libm::fmin(share * limit / g, cap);
             let w = self.waveform_from(emf, frequency, SAMPLES, out.last())?;
             out.push(w);

@@ -49,55 +49,24 @@ pub fn solve_ac(net: &Netlist, frequency: f64) -> Result<AcSolution> {
     let zero = Complex64::new(0.0, 0.0);
     let mut a = [[zero; MAX_UNKNOWNS]; MAX_UNKNOWNS];
     let mut b = [zero; MAX_UNKNOWNS];
-    let two = |a: &mut [[Complex64; MAX_UNKNOWNS]; MAX_UNKNOWNS],
-               p: Option<usize>,
-               q: Option<usize>,
-               y: Complex64| {
-        if let Some(i) = p {
-            a[i][i] += y;
-        }
-        if let Some(j) = q {
-            a[j][j] += y;
-        }
-        if let (Some(i), Some(j)) = (p, q) {
-            a[i][j] -= y;
-            a[j][i] -= y;
-        }
-    };
     let mut k = num.first_source;
     let mut ideal = num.first_ideal;
     for e in net.elements() {
         match *e {
             Element::Resistor { a: p, b: q, ohms } if ohms > 0.0 => {
-                two(&mut a, num.index[p.0], num.index[q.0], Complex64::new(1.0 / ohms, 0.0));
+                num.stamp_admittance(&mut a, p, q, Complex64::new(1.0 / ohms, 0.0));
             }
             Element::Resistor { .. } => {}
             // An ideal capacitor: a short, held by a 0 V source of its own.
             Element::Capacitor { a: p, b: q, farads } if is_ideal(farads) => {
-                let one = Complex64::new(1.0, 0.0);
-                if let Some(i) = num.index[p.0] {
-                    a[i][ideal] += one;
-                    a[ideal][i] += one;
-                }
-                if let Some(i) = num.index[q.0] {
-                    a[i][ideal] -= one;
-                    a[ideal][i] -= one;
-                }
+                num.stamp_source(&mut a, ideal, p, q, Complex64::new(1.0, 0.0));
                 ideal += 1;
             }
             Element::Capacitor { a: p, b: q, farads } => {
-                two(&mut a, num.index[p.0], num.index[q.0], Complex64::new(0.0, w * farads));
+                num.stamp_admittance(&mut a, p, q, Complex64::new(0.0, w * farads));
             }
             Element::VoltageSource { plus, minus, .. } | Element::Sine { plus, minus, .. } => {
-                let one = Complex64::new(1.0, 0.0);
-                if let Some(i) = num.index[plus.0] {
-                    a[i][k] += one;
-                    a[k][i] += one;
-                }
-                if let Some(i) = num.index[minus.0] {
-                    a[i][k] -= one;
-                    a[k][i] -= one;
-                }
+                num.stamp_source(&mut a, k, plus, minus, Complex64::new(1.0, 0.0));
                 let volts = match *e {
                     Element::Sine { amplitude, .. } => amplitude,
                     _ => super::dc::source_value(e, None),

@@ -185,6 +185,52 @@ impl<'a> Numbered<'a> {
         }
     }
 
+    /// Stamps an admittance `y` between nodes `p` and `q` into `a`.
+    pub(super) fn stamp_admittance<T>(
+        &self,
+        a: &mut [[T; MAX_UNKNOWNS]; MAX_UNKNOWNS],
+        p: Node,
+        q: Node,
+        y: T,
+    ) where
+        T: Copy + core::ops::AddAssign + core::ops::SubAssign,
+    {
+        let (ip, iq) = (self.index[p.0], self.index[q.0]);
+        if let Some(i) = ip {
+            a[i][i] += y;
+        }
+        if let Some(j) = iq {
+            a[j][j] += y;
+        }
+        if let (Some(i), Some(j)) = (ip, iq) {
+            a[i][j] -= y;
+            a[j][i] -= y;
+        }
+    }
+
+    /// Stamps the incidence of a voltage source whose current is unknown
+    /// `row`, V(plus) − V(minus) its value, into `a` (`one` is 1 in the
+    /// matrix's scalar).
+    pub(super) fn stamp_source<T>(
+        &self,
+        a: &mut [[T; MAX_UNKNOWNS]; MAX_UNKNOWNS],
+        row: usize,
+        plus: Node,
+        minus: Node,
+        one: T,
+    ) where
+        T: Copy + core::ops::AddAssign + core::ops::SubAssign,
+    {
+        if let Some(i) = self.index[plus.0] {
+            a[i][row] += one;
+            a[row][i] += one;
+        }
+        if let Some(i) = self.index[minus.0] {
+            a[i][row] -= one;
+            a[row][i] -= one;
+        }
+    }
+
     pub(super) fn v(&self, x: &[f64; MAX_UNKNOWNS], node: usize) -> f64 {
         self.index[node].map_or(0.0, |i| x[i])
     }
@@ -293,28 +339,10 @@ pub(super) fn stamp_linear(num: &Numbered<'_>, lin: &mut Dense, scale: f64, t: O
     for e in num.net.elements() {
         match *e {
             Element::Resistor { a, b, ohms } if ohms > 0.0 => {
-                let g = 1.0 / ohms;
-                let (ia, ib) = (num.index[a.0], num.index[b.0]);
-                if let Some(i) = ia {
-                    lin.a[i][i] += g;
-                }
-                if let Some(i) = ib {
-                    lin.a[i][i] += g;
-                }
-                if let (Some(i), Some(m)) = (ia, ib) {
-                    lin.a[i][m] -= g;
-                    lin.a[m][i] -= g;
-                }
+                num.stamp_admittance(&mut lin.a, a, b, 1.0 / ohms);
             }
             Element::VoltageSource { plus, minus, .. } | Element::Sine { plus, minus, .. } => {
-                if let Some(i) = num.index[plus.0] {
-                    lin.a[i][k] += 1.0;
-                    lin.a[k][i] += 1.0;
-                }
-                if let Some(i) = num.index[minus.0] {
-                    lin.a[i][k] -= 1.0;
-                    lin.a[k][i] -= 1.0;
-                }
+                num.stamp_source(&mut lin.a, k, plus, minus, 1.0);
                 lin.b[k] = source_value(e, t) * scale;
                 k += 1;
             }

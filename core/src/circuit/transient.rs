@@ -278,14 +278,7 @@ impl<'a> Engine<'a> {
         stamp_linear(&self.num, &mut lin, 1.0, Some(t));
         for (k, &(a, b, v)) in self.held.iter().enumerate() {
             let row = self.num.first_ideal + k;
-            if let Some(i) = self.num.index[a.0] {
-                lin.a[i][row] += 1.0;
-                lin.a[row][i] += 1.0;
-            }
-            if let Some(i) = self.num.index[b.0] {
-                lin.a[i][row] -= 1.0;
-                lin.a[row][i] -= 1.0;
-            }
+            self.num.stamp_source(&mut lin.a, row, a, b, 1.0);
             lin.b[row] = v;
         }
         lin
@@ -337,18 +330,12 @@ impl<'a> Engine<'a> {
                 let g = a0 * c0;
                 // i = a0·q(v) + hist ≈ g·v + (a0·q0 + hist − g·v0), from a to b.
                 let i_eq = a0 * q0 + h - g * v0;
-                let (ia, ib) = (self.num.index[br.a.0], self.num.index[br.b.0]);
-                if let Some(r) = ia {
-                    sys.a[r][r] += g;
+                self.num.stamp_admittance(&mut sys.a, br.a, br.b, g);
+                if let Some(r) = self.num.index[br.a.0] {
                     sys.b[r] -= i_eq;
                 }
-                if let Some(r) = ib {
-                    sys.a[r][r] += g;
+                if let Some(r) = self.num.index[br.b.0] {
                     sys.b[r] += i_eq;
-                }
-                if let (Some(r), Some(s)) = (ia, ib) {
-                    sys.a[r][s] -= g;
-                    sys.a[s][r] -= g;
                 }
             }
             let lu = Lu::factor(&sys)?;
@@ -665,24 +652,6 @@ pub struct Periodic {
     pub residual: f64,
 }
 
-impl Periodic {
-    /// A seed for [`periodic_steady_state_from`] holding only the state
-    /// `start` (as [`Periodic::start`] gives it).
-    pub fn seed(start: &[f64]) -> Periodic {
-        Periodic {
-            period: 0.0,
-            time: Vec::new(),
-            voltages: Vec::new(),
-            collector_currents: Vec::new(),
-            capacitor_currents: Vec::new(),
-            periods: 0,
-            start: start.to_vec(),
-            newton_iterations: 0,
-            residual: 0.0,
-        }
-    }
-}
-
 /// The periodic steady state of `net` when every sine source runs at
 /// `frequency` hertz, sampled at `samples` uniform steps per period.
 ///
@@ -696,8 +665,9 @@ pub fn periodic_steady_state(net: &Netlist, frequency: f64, samples: usize) -> R
 }
 
 /// [`periodic_steady_state`] started from a neighbouring solution: with
-/// `seed` = (a steady state of the same netlist at another drive, the
-/// ratio r of this drive to that one), the first guess of the state is
+/// `seed` = (the [`Periodic::start`] of a steady state of the same netlist
+/// at another drive, the ratio r of this drive to that one), the first
+/// guess of the state is
 /// the DC state plus r times that one's departure from it (exact for a
 /// linear circuit), which saves a period or two along a sweep of
 /// amplitudes.
@@ -708,7 +678,7 @@ pub fn periodic_steady_state_from(
     net: &Netlist,
     frequency: f64,
     samples: usize,
-    seed: Option<(&Periodic, f64)>,
+    seed: Option<(&[f64], f64)>,
 ) -> Result<Periodic> {
     if !(frequency.is_finite() && frequency > 0.0) {
         return Err(Error::new(
@@ -738,11 +708,11 @@ pub fn periodic_steady_state_from(
     let scale: Vec<f64> = c_dc.iter().map(|c| libm::fmax(*c, 1e-15)).collect();
     let mut z = q_dc.clone();
     z.extend_from_slice(&q_dc);
-    if let Some((p, r)) = seed {
-        if p.start.len() == z.len() && r.is_finite() {
+    if let Some((start, r)) = seed {
+        if start.len() == z.len() && r.is_finite() {
             for (k, zk) in z.iter_mut().enumerate() {
                 let dc = q_dc[k % m];
-                *zk = dc + r * (p.start[k] - dc);
+                *zk = dc + r * (start[k] - dc);
             }
         }
     }
