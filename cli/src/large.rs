@@ -204,13 +204,15 @@ pub fn run(file: &str, drive: Drive, frequency: &str, csv: bool, json_out: bool)
 }
 
 /// The large-signal section of `analyze`: the distortion-limited swing at
-/// the default THD limit and frequency, beside the load-line limits.
+/// the design's THD limit and frequency (`max_thd`, `thd_frequency`; 1 %
+/// and 1 kHz without them), beside the load-line limits, and the THD at
+/// the required swing (`thd_swing`, else `min_swing`).
 pub struct Section {
     limit: LimitedSwing,
     positive: f64,
     negative: f64,
-    /// The design's required swing (`min_swing`) and the steady state
-    /// there, or why there is none.
+    /// The design's required swing (`thd_swing`, else `min_swing`) and the
+    /// steady state there, or why there is none.
     at_required: Option<(f64, Result<Waveform, Error>)>,
 }
 
@@ -219,12 +221,17 @@ impl Section {
     /// speak of (not biased in the active region) or does not solve.
     pub fn new(design: &Design) -> Result<Section, Error> {
         let ls = LargeSignal::new(&design.stage)?;
-        let limit = ls.limited_swing(DEFAULT_MAX_THD, DEFAULT_FREQUENCY)?;
-        let at_required = design
-            .requirements
-            .min_swing
+        // The design's THD requirement where it has one: its limit,
+        // frequency and output peak (thd_swing, else min_swing).
+        let r = &design.requirements;
+        let max_thd = r.max_thd.unwrap_or(DEFAULT_MAX_THD);
+        let frequency = r.thd_frequency.unwrap_or(DEFAULT_FREQUENCY);
+        let limit = ls.limited_swing(max_thd, frequency)?;
+        let at_required = r
+            .thd_swing
+            .or(r.min_swing)
             .filter(|v| *v > 0.0)
-            .map(|v| (v, ls.at_output(v, DEFAULT_FREQUENCY)));
+            .map(|v| (v, ls.at_output(v, frequency)));
         Ok(Section {
             limit,
             positive: ls.swing().positive,
@@ -265,16 +272,15 @@ impl Section {
             format_si(self.positive, "V"),
             format_si(self.negative, "V")
         ));
+        let at = format!("swing at {} THD", format_si(100.0 * l.max_thd, "%"));
         match l.output_peak {
             Some(p) => o.push_str(&format!(
-                "  swing at {:.0} % THD          {} peak at the load (EMF {})\n",
-                100.0 * l.max_thd,
+                "  {at:<26}{} peak at the load (EMF {})\n",
                 format_si(p, "V"),
                 format_si(l.waveform.emf, "V")
             )),
             None => o.push_str(&format!(
-                "  swing at {:.0} % THD          over {} peak\n",
-                100.0 * l.max_thd,
+                "  {at:<26}over {} peak\n",
                 format_si(l.waveform.output_peak, "V")
             )),
         }

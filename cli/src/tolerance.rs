@@ -11,7 +11,7 @@
 use clap::Args;
 use serde_json::{Map, Value};
 use stagewright::{
-    db20, format_si, parse_value_field, sensitivity, worst_case, worst_checks, Corner, Design,
+    db20, format_si, parse_value_field, sensitivity, worst_case_with, worst_checks, Corner, Design,
     Error, ErrorKind, Level, MonteCarlo, Quantity, Temperature, ToleranceDocument, Tolerances,
 };
 
@@ -260,7 +260,7 @@ pub(crate) fn analyse(design: &Design, plan: &Plan) -> Result<Outcome, Error> {
     let t = tolerances(design, &plan.overrides)?;
     let stage = &design.stage;
     let worst = if plan.worst_case {
-        let w = worst_case(stage, &t)?;
+        let w = worst_case_with(stage, &t, &design.requirements)?;
         let checks = worst_checks(&design.requirements, &w);
         Some((w, checks))
     } else {
@@ -291,6 +291,16 @@ pub(crate) fn analyse(design: &Design, plan: &Plan) -> Result<Outcome, Error> {
 }
 
 /// A yield as a percentage that never rounds a failing run up to 100 %.
+/// A result's value in its unit; the THD (a share) in percent, and
+/// "unbounded" where some vertex does not deliver its output peak.
+fn value_of(q: Quantity, v: f64) -> String {
+    match q {
+        Quantity::Thd if v == f64::INFINITY => "unbounded".to_string(),
+        Quantity::Thd => format_si(100.0 * v, "%"),
+        _ => format_si(v, q.unit()),
+    }
+}
+
 fn percent(y: f64) -> String {
     if y >= 1.0 {
         "100 %".to_string()
@@ -473,14 +483,14 @@ impl Outcome {
             ));
             row(&mut o, ["result", "nominal", "min", "max"]);
             for e in &w.extremes {
-                let u = e.quantity.unit();
+                let q = e.quantity;
                 row(
                     &mut o,
                     [
-                        e.quantity.name(),
-                        &format_si(e.nominal, u),
-                        &format_si(e.min, u),
-                        &format_si(e.max, u),
+                        q.name(),
+                        &value_of(q, e.nominal),
+                        &value_of(q, e.min),
+                        &value_of(q, e.max),
                     ],
                 );
                 if e.quantity == Quantity::VoltageGain {
@@ -494,6 +504,12 @@ impl Outcome {
                         ],
                     );
                 }
+            }
+            if let Some(t) = &w.thd {
+                o.push_str(&format!(
+                    "    thd: searched, a steady state at {} of the {} vertices (the extremes of gain, bias and swing, then single flips while the THD grows or falls)\n",
+                    t.solved, t.of
+                ));
             }
             if checks.is_empty() {
                 o.push_str("\n  Requirements at their worst vertex: none set\n");
@@ -555,16 +571,22 @@ impl Outcome {
                     .collect();
                 o.push_str(&format!("    each requirement: {}\n", list.join(", ")));
             }
+            if let Some(n) = m.thd_solved {
+                o.push_str(&format!(
+                    "    thd: a steady state solved in {n} of {} trials; the others, predicted under half of max_thd with twice the swing in load-line headroom, carry the prediction\n",
+                    m.completed
+                ));
+            }
             row(&mut o, ["result", "p1", "p50", "p99"]);
             for d in &m.distributions {
-                let u = d.quantity.unit();
+                let q = d.quantity;
                 row(
                     &mut o,
                     [
-                        d.quantity.name(),
-                        &format_si(d.p1, u),
-                        &format_si(d.p50, u),
-                        &format_si(d.p99, u),
+                        q.name(),
+                        &value_of(q, d.p1),
+                        &value_of(q, d.p50),
+                        &value_of(q, d.p99),
                     ],
                 );
             }

@@ -10,14 +10,21 @@
 //! - `limited_swing`: the curve and the search for the 1 % THD swing;
 //! - `thd_at_output`: THD at a required output peak (2 V), the EMF found
 //!   for it: what one check of a THD requirement costs, at each vertex of
-//!   a worst case or each Monte Carlo sample.
+//!   a worst case or each Monte Carlo sample;
+//! - `worst_case_with_thd`: the worst case of the stage over the default
+//!   tolerance box with `max_thd` at 2 V (the vertex search of the
+//!   tolerance module's docs);
+//! - `monte_carlo_thd_100`: 100 Monte Carlo trials with `max_thd` at 2 V
+//!   (each trial's THD seeded from the nominal steady state).
 //!
 //! Run: `cargo bench -p stagewright --bench large_signal -- --warm-up-time 1 --measurement-time 5`
 
 use std::hint::black_box;
 
 use criterion::{criterion_group, criterion_main, Criterion};
-use stagewright::{LargeSignal, Stage, SAMPLES};
+use stagewright::{
+    worst_case_with, LargeSignal, MonteCarlo, Requirements, Stage, Tolerances, SAMPLES,
+};
 
 fn benches(c: &mut Criterion) {
     let stage = Stage::example();
@@ -49,6 +56,26 @@ fn benches(c: &mut Criterion) {
         b.iter(|| {
             let w = ls.at_output(black_box(2.0), 1e3).expect("reaches it");
             black_box(w.thd)
+        })
+    });
+    let requirements = Requirements {
+        max_thd: Some(0.05),
+        thd_swing: Some(2.0),
+        ..Requirements::default()
+    };
+    let tol = Tolerances::default();
+    g.bench_function("worst_case_with_thd", |b| {
+        b.iter(|| {
+            let w = worst_case_with(black_box(&stage), &tol, &requirements).expect("solves");
+            black_box(w.thd.map(|t| t.solved))
+        })
+    });
+    let mc = MonteCarlo::new(&stage, &tol, &requirements, 100, 1).expect("prepares");
+    g.bench_function("monte_carlo_thd_100", |b| {
+        b.iter(|| {
+            let mut run = mc.clone();
+            run.run();
+            black_box(run.summary().yield_fraction)
         })
     });
     g.finish();

@@ -48,7 +48,7 @@ impl Design {
     /// (always run) followed by the requirements that are set.
     pub fn checks(&self, analysis: &Analysis) -> Vec<Check> {
         let mut out = analysis.ratings.clone();
-        out.extend(self.requirements.check(analysis));
+        out.extend(self.requirements.check(&self.stage, analysis));
         out
     }
 }

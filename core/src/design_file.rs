@@ -93,6 +93,9 @@
 //! | `min_f_high` | Hz | lowest acceptable upper −3 dB corner |
 //! | `max_supply_current` | A | largest quiescent supply current |
 //! | `max_junction_temperature` | °C | largest quiescent junction temperature |
+//! | `max_thd` | share | largest THD at the load (`0.01` or `"1 %"`), of the periodic steady state with the stage driven to `thd_swing` |
+//! | `thd_swing` | V | the output peak at the load at which `max_thd` holds (default: `min_swing`; one of the two is needed) |
+//! | `thd_frequency` | Hz | the frequency at which `max_thd` holds (default 1 kHz) |
 //!
 //! The ratings checks of the core (VCEO, IC max, Ptot, Tj max, resistor
 //! power) always run, whatever the requirements say.
@@ -389,6 +392,11 @@ impl Design {
         let mut requirements = RequirementsDocument::default();
         for (req, limit) in r.limits() {
             requirements.set(req.key, Some(Typed::exact(limit, req.unit)));
+        }
+        for c in &crate::requirements::CONDITIONS {
+            if let Some(v) = r.get(c.key) {
+                requirements.set(c.key, Some(Typed::exact(v, c.unit)));
+            }
         }
         let text = |t: &str| {
             if t.is_empty() {
@@ -763,6 +771,59 @@ mod tests {
     fn with(old: &str, new: &str) -> String {
         assert!(GOOD.contains(old), "the test text must contain {old}");
         GOOD.replacen(old, new, 1)
+    }
+
+    #[test]
+    fn the_thd_requirement_reads_as_a_share_with_its_conditions() {
+        // "1 %" and 0.01 are the same limit; the conditions read in their
+        // units; written back, the file reads the same (exact).
+        let read = |req: &str| {
+            Design::from_json(&with(
+                r#""min_swing": "1 V""#,
+                &[r#""min_swing": "1 V", "#, req].concat(),
+            ))
+        };
+        let d = read(r#""max_thd": "1 %", "thd_swing": "2.5", "thd_frequency": "10k""#).unwrap();
+        let r = d.requirements;
+        assert_eq!(r.max_thd, Some(0.01));
+        let c = r.thd_condition().unwrap();
+        assert_eq!((c.swing, c.frequency), (2.5, 10e3));
+        assert_eq!(
+            read(r#""max_thd": 0.01"#).unwrap().requirements.max_thd,
+            Some(0.01)
+        );
+        let again = Design::from_json(&d.to_json()).unwrap();
+        assert_eq!(again.requirements, d.requirements);
+        // Without thd_swing, min_swing (1 V) and 1 kHz.
+        let c = read(r#""max_thd": 0.02"#)
+            .unwrap()
+            .requirements
+            .thd_condition()
+            .unwrap();
+        assert_eq!((c.swing, c.frequency), (1.0, 1e3));
+        // 5 meant as 5 %: refused with the fix; 0 and 100 % refused.
+        for bad in [
+            r#""max_thd": 5"#,
+            r#""max_thd": 0"#,
+            r#""max_thd": "100 %""#,
+        ] {
+            let e = read(bad).unwrap_err();
+            assert_eq!(e.field(), "requirements.max_thd", "{bad}");
+            assert!(e.to_string().contains("\"1 %\""), "{bad}: {e}");
+        }
+        // A condition without its requirement, and a negative peak.
+        let e = read(r#""thd_swing": "2 V""#).unwrap_err();
+        assert_eq!(e.field(), "requirements.thd_swing");
+        assert!(e.to_string().contains("give max_thd too"), "{e}");
+        let e = read(r#""max_thd": 0.01, "thd_swing": "-2 V""#).unwrap_err();
+        assert_eq!(e.field(), "requirements.thd_swing");
+    }
+
+    #[test]
+    fn max_thd_needs_an_output_peak() {
+        let e = err(&with(r#""min_swing": "1 V""#, r#""max_thd": "1 %""#));
+        assert_eq!(e.field(), "requirements.thd_swing");
+        assert!(e.to_string().contains("give thd_swing"), "{e}");
     }
 
     #[test]

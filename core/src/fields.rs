@@ -363,6 +363,11 @@ mod tests {
                 .iter()
                 .map(|r| alloc::format!("requirements.{}", r.key)),
         );
+        table.extend(
+            crate::requirements::CONDITIONS
+                .iter()
+                .map(|c| alloc::format!("requirements.{}", c.key)),
+        );
         let blocks = [
             "format",
             "transistor",

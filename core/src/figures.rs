@@ -290,6 +290,18 @@ pub const FIGURES: &[Figure] = &[
     DISS_SUPPLY_CURRENT,
 ];
 
+/// `large_signal.at_required_swing.thd`: the THD at the output peak of
+/// the `max_thd` requirement. It is not in [`FIGURES`], the small-signal
+/// report's table: the large-signal section is written by the command
+/// line's `analyze`, from [`crate::LargeSignal`].
+pub const LS_THD: Figure = f(
+    "large_signal.at_required_swing.thd",
+    "THD at the required swing",
+    "",
+    NONE,
+    "",
+);
+
 /// A result of the analysis that the tolerance analysis follows.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Hash)]
 #[cfg_attr(feature = "serde", derive(serde::Serialize))]
@@ -315,11 +327,16 @@ pub enum Quantity {
     JunctionTemperature,
     /// Current drawn from the supply, A.
     SupplyCurrent,
+    /// Total harmonic distortion at the load (a share) at the output peak
+    /// and frequency of the `max_thd` requirement, from the periodic
+    /// steady state ([`crate::LargeSignal::at_output`]). It is followed
+    /// only when that requirement is set (NaN otherwise).
+    Thd,
 }
 
 impl Quantity {
     /// Every quantity, in report order.
-    pub const ALL: [Quantity; 10] = [
+    pub const ALL: [Quantity; 11] = [
         Quantity::Ic,
         Quantity::Vce,
         Quantity::VoltageGain,
@@ -330,6 +347,7 @@ impl Quantity {
         Quantity::FHigh,
         Quantity::JunctionTemperature,
         Quantity::SupplyCurrent,
+        Quantity::Thd,
     ];
 
     /// The report key: `ic`, `vce`, `voltage_gain`, ...
@@ -345,6 +363,7 @@ impl Quantity {
             Quantity::FHigh => "f_high",
             Quantity::JunctionTemperature => "junction_temperature",
             Quantity::SupplyCurrent => "supply_current",
+            Quantity::Thd => "thd",
         }
     }
 
@@ -363,6 +382,7 @@ impl Quantity {
             Quantity::FHigh => &BW_F_HIGH,
             Quantity::JunctionTemperature => &DISS_JUNCTION_TEMPERATURE,
             Quantity::SupplyCurrent => &DISS_SUPPLY_CURRENT,
+            Quantity::Thd => &LS_THD,
         }
     }
 

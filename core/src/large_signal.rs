@@ -36,6 +36,10 @@ use crate::swing::Swing;
 
 /// Harmonics reported and summed for the THD (2 to this).
 pub const HARMONICS: usize = 10;
+/// How close [`LargeSignal::at_output`] brings the output peak to the one
+/// asked for, relative.
+pub const AT_OUTPUT_TOLERANCE: f64 = 1e-6;
+
 /// Samples per period of the steady state.
 pub const SAMPLES: usize = 256;
 /// The default THD limit of the distortion-limited swing (a share).
@@ -146,8 +150,10 @@ pub struct Waveform {
     /// Shooting periods integrated.
     pub periods: u32,
     /// The engine's state at the start of the period, to seed a solve at
-    /// a neighbouring amplitude.
+    /// a neighbouring amplitude (or of a neighbouring stage).
     pub state: Vec<f64>,
+    /// The DC state that `state` departs from.
+    pub state_dc: Vec<f64>,
 }
 
 /// One point of the THD curve.
@@ -291,8 +297,22 @@ impl LargeSignal {
         let device = t.device(stage.ambient, t.hfe, 0.0);
         let op = OperatingPoint::solve(stage, &device)?;
         let ss = SmallSignal::at(stage, &op);
-        let charges = Charges::at_bias(t, &op, &ss);
-        let response = Response::new(stage, &ss)?;
+        LargeSignal::at_bias(stage, op, &ss)
+    }
+
+    /// The large-signal stage of `stage` (validated) at its solved quiescent
+    /// point `op` and small-signal model `ss` there, whatever device `op`
+    /// was solved with: the tolerance analysis' vertices and trials.
+    ///
+    /// # Errors
+    /// When the small-signal network is singular.
+    pub(crate) fn at_bias(
+        stage: &Stage,
+        op: OperatingPoint,
+        ss: &SmallSignal,
+    ) -> Result<LargeSignal> {
+        let charges = Charges::at_bias(&stage.transistor, &op, ss);
+        let response = Response::new(stage, ss)?;
         let swing = Swing::at(stage, &op);
         Ok(LargeSignal {
             stage: stage.clone(),
@@ -335,9 +355,10 @@ impl LargeSignal {
     }
 
     /// [`LargeSignal::waveform`] started from the steady state `seed` at
-    /// another amplitude of the same frequency (scaled to this one), which
-    /// saves periods along a sweep; the result is the same to the engine's
-    /// tolerance.
+    /// another amplitude of the same frequency (scaled to this one), or of
+    /// a stage with the same parts at other values, which saves periods
+    /// along a sweep or over a tolerance box; the result is the same to the
+    /// engine's tolerance.
     ///
     /// # Errors
     /// As [`LargeSignal::waveform`].
@@ -373,7 +394,7 @@ impl LargeSignal {
             &net,
             frequency,
             samples,
-            seed.map(|w| (w.state.as_slice(), emf / w.emf)),
+            seed.map(|w| (w.state.as_slice(), w.state_dc.as_slice(), emf / w.emf)),
         )?;
         let load = core::mem::take(&mut p.voltages[nodes.output.0]);
         let (load_mean, harmonics) = harmonics(&load);
@@ -443,6 +464,7 @@ impl LargeSignal {
             clipping,
             periods: p.periods,
             state: p.start,
+            state_dc: p.dc,
         })
     }
 }
@@ -600,10 +622,16 @@ impl LargeSignal {
     }
 
     /// The steady state whose output peak (the fundamental at the load)
-    /// is `peak` volts at `frequency`, to 0.01 %: the EMF found by the
-    /// secant on log output against log EMF from the small-signal gain's
-    /// guess, bracketed once the target is passed (a bisection step when
-    /// the secant leaves the bracket).
+    /// is `peak` volts at `frequency`, to 10⁻⁶ relative: the EMF found by
+    /// the secant on log output against log EMF from the small-signal
+    /// gain's guess, bracketed once the target is passed (a bisection step
+    /// when the secant leaves the bracket).
+    ///
+    /// The tolerance is tight so that the THD found carries no visible
+    /// error from it: THD grows as the peak or faster, so 10⁻⁶ of the peak
+    /// is a few 10⁻⁶ of the THD, well under the tolerance analysis' ±1 %
+    /// sensitivity steps. Once close, a secant step gains several digits,
+    /// so this costs about one steady state more than 10⁻⁴ would.
     ///
     /// # Errors
     /// [`ErrorKind::OutOfRange`] naming `thd_swing` when the stage cannot
@@ -611,6 +639,24 @@ impl LargeSignal {
     /// [`ErrorKind::NoConvergence`] naming `thd_swing` when the search does
     /// not settle; the [`LargeSignal::waveform`] errors.
     pub fn at_output(&self, peak: f64, frequency: f64) -> Result<Waveform> {
+        self.at_output_from(peak, frequency, None)
+    }
+
+    /// [`LargeSignal::at_output`] started from `seed`, the steady state of
+    /// a stage with the same parts at other values at the same peak and
+    /// frequency: its EMF is the first guess and the first solve starts
+    /// from it (each later solve starts from the one before, in both). The
+    /// tolerance analysis seeds every vertex and trial from the nominal
+    /// stage.
+    ///
+    /// # Errors
+    /// As [`LargeSignal::at_output`].
+    pub fn at_output_from(
+        &self,
+        peak: f64,
+        frequency: f64,
+        seed: Option<&Waveform>,
+    ) -> Result<Waveform> {
         if !(peak.is_finite() && peak > 0.0) {
             return Err(out_of_range(
                 "thd_swing",
@@ -626,12 +672,19 @@ impl LargeSignal {
         let mut below: Option<(f64, f64)> = None;
         let mut above: Option<(f64, f64)> = None;
         let mut most: f64 = 0.0;
-        let mut emf = libm::fmin(peak / g, cap);
+        let seed = seed.filter(|w| w.frequency == frequency && w.output_peak > 0.0);
+        let mut emf = match seed {
+            Some(w) => w.emf * peak / w.output_peak,
+            None => peak / g,
+        };
+        emf = libm::fmin(emf, cap);
         let mut prev: Option<(f64, f64)> = None;
+        let mut last: Option<Waveform> = None;
         for _ in 0..60 {
-            let w = self.waveform(emf, frequency, SAMPLES)?;
+            let from = last.as_ref().or(seed);
+            let w = self.waveform_from(emf, frequency, SAMPLES, from)?;
             most = most.max(w.output_peak);
-            if libm::fabs(w.output_peak / peak - 1.0) <= 1e-4 {
+            if libm::fabs(w.output_peak / peak - 1.0) <= AT_OUTPUT_TOLERANCE {
                 return Ok(w);
             }
             let point = (libm::log(emf), libm::log(libm::fmax(w.output_peak, 1e-300)));
@@ -663,6 +716,7 @@ impl LargeSignal {
                 }
             }
             prev = Some(point);
+            last = Some(w);
             let next_emf = libm::fmin(libm::exp(next), cap);
             if above.is_none() && emf >= cap && next_emf >= cap {
                 // The most drive allowed and still short of the target.

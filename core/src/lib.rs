@@ -159,7 +159,9 @@ pub use report::{
     DesignResult, Entries, PartEntry, Report, SweepRow, SweepTable, REPORT_FORMAT, SWEEP_FORMAT,
     TOLERANCE_FORMAT,
 };
-pub use requirements::{Bound, Requirement, Requirements, REQUIREMENTS};
+pub use requirements::{
+    thd_check, Bound, Condition, Requirement, Requirements, ThdCondition, CONDITIONS, REQUIREMENTS,
+};
 pub use response::{log_frequencies, Bandwidth, Edge, Response, SEARCH_FROM, SEARCH_TO};
 #[cfg(feature = "serde")]
 pub use spec_file::{
@@ -176,9 +178,10 @@ pub use synthesis::{
     DEFAULT_EMITTER_FRACTION, DEFAULT_F_LOW, DEFAULT_SATURATION_RESERVE, DEFAULT_STIFFNESS,
 };
 pub use tolerance::{
-    sensitivity, tolerance_analysis, worst_case, worst_checks, Corner, Distribution, Extreme,
-    Histogram, Level, MonteCarlo, MonteCarloSummary, Parameter, RequirementYield, Sensitivity,
-    Setting, ToleranceDocument, Tolerances, WorstCase, WorstCheck, DEFAULT_TRIALS, MAX_TRIALS,
+    sensitivity, tolerance_analysis, worst_case, worst_case_with, worst_checks, Corner,
+    Distribution, Extreme, Histogram, Level, MonteCarlo, MonteCarloSummary, Parameter,
+    RequirementYield, Sensitivity, Setting, ThdSearch, ToleranceDocument, Tolerances, WorstCase,
+    WorstCheck, DEFAULT_TRIALS, MAX_TRIALS,
 };
 pub use transistor::{
     Currents, Device, Polarity, TransistorData, CJC_BUILT_IN, CJC_GRADING, DEFAULT_BETA_REVERSE,

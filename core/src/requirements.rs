@@ -2,7 +2,10 @@
 //!
 //! Each requirement is optional. Voltage gain means the terminal gain
 //! V(load)/V(input terminal), in dB of its magnitude; swing is the symmetric
-//! peak at the load; the corners are those of the gain from the source.
+//! peak at the load; the corners are those of the gain from the source;
+//! THD is that of the periodic steady state at the load with the stage
+//! driven to the output peak `thd_swing` (or `min_swing`) at
+//! `thd_frequency` (1 kHz), a share held and shown in percent.
 //!
 //! [`REQUIREMENTS`] is the one table of them: the key, the result it reads
 //! (a [`Quantity`], whose figure names it), the bound, the unit and what the
@@ -13,10 +16,13 @@ use alloc::vec::Vec;
 
 use crate::analysis::Analysis;
 use crate::decibel::db20;
+use crate::error::Result;
 use crate::figures::Quantity;
 use crate::format::format_si;
+use crate::large_signal::{LargeSignal, DEFAULT_FREQUENCY};
 use crate::ratings::Check;
 use crate::response::{Bandwidth, Edge, Side, SEARCH_FROM, SEARCH_TO};
+use crate::stage::Stage;
 
 /// The requirements block of a design, SI units (temperatures in °C).
 #[derive(Debug, Clone, Copy, PartialEq, Default)]
@@ -39,7 +45,58 @@ pub struct Requirements {
     pub max_supply_current: Option<f64>,
     /// Largest junction temperature, °C.
     pub max_junction_temperature: Option<f64>,
+    /// Largest total harmonic distortion at the load, a share (0.01 is
+    /// 1 %), with the stage driven to the output peak `thd_swing` at
+    /// `thd_frequency` ([`Requirements::thd_condition`]).
+    pub max_thd: Option<f64>,
+    /// The output peak at the load at which `max_thd` holds, V; `min_swing`
+    /// when not given. A condition of `max_thd`, not a bound.
+    pub thd_swing: Option<f64>,
+    /// The frequency at which `max_thd` holds, Hz; 1 kHz when not given. A
+    /// condition of `max_thd`, not a bound.
+    pub thd_frequency: Option<f64>,
 }
+
+/// The output peak and frequency at which `max_thd` is judged
+/// ([`Requirements::thd_condition`]).
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct ThdCondition {
+    /// The output peak at the load, V.
+    pub swing: f64,
+    /// The frequency, Hz.
+    pub frequency: f64,
+}
+
+/// A key of the requirements block that sets where a requirement is
+/// judged rather than bounding a result (`thd_swing`, `thd_frequency`).
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub struct Condition {
+    /// The key in the `requirements` block.
+    pub key: &'static str,
+    /// What it is, complete enough to stand alone.
+    pub label: &'static str,
+    /// The unit of its value.
+    pub unit: &'static str,
+    /// The requirement it belongs to.
+    pub of: &'static str,
+}
+
+/// The conditions of the requirements block, in the file's order (after
+/// the [`REQUIREMENTS`]). Each must be positive.
+pub const CONDITIONS: [Condition; 2] = [
+    Condition {
+        key: "thd_swing",
+        label: "output peak at which the THD is judged",
+        unit: "V",
+        of: "max_thd",
+    },
+    Condition {
+        key: "thd_frequency",
+        label: "frequency at which the THD is judged",
+        unit: "Hz",
+        of: "max_thd",
+    },
+];
 
 /// Which way a requirement bounds its result.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
@@ -59,6 +116,9 @@ pub(crate) enum Rule {
     Positive,
     /// A finite number of 0 or more.
     NonNegative,
+    /// A share above 0 and below 1: a number is the fraction (`0.01`), text
+    /// ending in `%` is in percent (`"1 %"`).
+    Share,
 }
 
 /// One requirement: its key in the file and what it bounds.
@@ -70,7 +130,8 @@ pub struct Requirement {
     pub quantity: Quantity,
     /// At least or at most.
     pub bound: Bound,
-    /// The unit of the limit: the result's, or dB for the voltage gain.
+    /// The unit of the limit: the result's, dB for the voltage gain, `%`
+    /// for the THD (held as a share, shown in percent).
     pub unit: &'static str,
     /// What the file may hold.
     pub(crate) rule: Rule,
@@ -111,8 +172,14 @@ impl Requirement {
             }
     }
 
-    /// The check of `value` against `limit`, the result named `what`.
+    /// The check of `value` against `limit`, the result named `what`; a
+    /// share (unit `%`) is compared and shown in percent.
     pub(crate) fn check(&self, what: &str, value: f64, limit: f64) -> Check {
+        let (value, limit) = if self.unit == "%" {
+            (100.0 * value, 100.0 * limit)
+        } else {
+            (value, limit)
+        };
         match self.bound {
             Bound::AtLeast => Check::at_least(self.key, what, value, limit, self.unit),
             Bound::AtMost => Check::at_most(self.key, what, value, limit, self.unit),
@@ -137,7 +204,7 @@ const fn req(
 }
 
 /// Every requirement, in the order of the file format (and of the checks).
-pub const REQUIREMENTS: [Requirement; 9] = [
+pub const REQUIREMENTS: [Requirement; 10] = [
     req(
         "min_voltage_gain_db",
         Quantity::VoltageGain,
@@ -201,10 +268,12 @@ pub const REQUIREMENTS: [Requirement; 9] = [
         "°C",
         Rule::Finite,
     ),
+    req("max_thd", Quantity::Thd, Bound::AtMost, "%", Rule::Share),
 ];
 
 /// The value of the result `q` in an analysis (the voltage gain as a
-/// magnitude, |VCE|; a corner that was not found is NaN).
+/// magnitude, |VCE|; a corner that was not found is NaN; the THD, which
+/// the small-signal analysis does not hold, NaN).
 pub(crate) fn result_of(a: &Analysis, q: Quantity) -> f64 {
     match q {
         Quantity::Ic => a.operating_point.ic,
@@ -217,6 +286,7 @@ pub(crate) fn result_of(a: &Analysis, q: Quantity) -> f64 {
         Quantity::FHigh => a.bandwidth.f_high.unwrap_or(f64::NAN),
         Quantity::JunctionTemperature => a.dissipation.junction_temperature.celsius(),
         Quantity::SupplyCurrent => a.dissipation.supply_current,
+        Quantity::Thd => f64::NAN,
     }
 }
 
@@ -226,12 +296,14 @@ impl Requirements {
         *self == Requirements::default()
     }
 
-    /// The limit of the requirement `key`, if it is set.
+    /// The limit of the requirement `key` (or the value of the condition
+    /// `key`), if it is set.
     pub fn get(&self, key: &str) -> Option<f64> {
         *self.slot(key)?
     }
 
-    /// Sets the limit of the requirement `key`; false for an unknown key.
+    /// Sets the limit of the requirement `key` (or the value of the
+    /// condition `key`); false for an unknown key.
     pub fn set(&mut self, key: &str, limit: Option<f64>) -> bool {
         match self.slot_mut(key) {
             Some(s) => {
@@ -253,6 +325,9 @@ impl Requirements {
             "min_f_high" => &self.min_f_high,
             "max_supply_current" => &self.max_supply_current,
             "max_junction_temperature" => &self.max_junction_temperature,
+            "max_thd" => &self.max_thd,
+            "thd_swing" => &self.thd_swing,
+            "thd_frequency" => &self.thd_frequency,
             _ => return None,
         })
     }
@@ -268,6 +343,9 @@ impl Requirements {
             "min_f_high" => &mut self.min_f_high,
             "max_supply_current" => &mut self.max_supply_current,
             "max_junction_temperature" => &mut self.max_junction_temperature,
+            "max_thd" => &mut self.max_thd,
+            "thd_swing" => &mut self.thd_swing,
+            "thd_frequency" => &mut self.thd_frequency,
             _ => return None,
         })
     }
@@ -279,10 +357,36 @@ impl Requirements {
             .filter_map(|r| self.get(r.key).map(|l| (r, l)))
     }
 
-    /// Checks each requirement that is set, in the order of the table.
-    pub fn check(&self, a: &Analysis) -> Vec<Check> {
+    /// Where `max_thd` is judged, when it is set: at `thd_swing` (or
+    /// `min_swing`) and `thd_frequency` (or [`DEFAULT_FREQUENCY`], 1 kHz).
+    /// `None` without `max_thd`, or without an output peak to judge it at
+    /// (the file reader refuses that case).
+    pub fn thd_condition(&self) -> Option<ThdCondition> {
+        self.max_thd?;
+        Some(ThdCondition {
+            swing: self.thd_swing.or(self.min_swing)?,
+            frequency: self.thd_frequency.unwrap_or(DEFAULT_FREQUENCY),
+        })
+    }
+
+    /// Checks each requirement that is set, in the order of the table, on
+    /// `stage` and its analysis `a`. `max_thd` costs a periodic steady
+    /// state search ([`thd_check`], a few milliseconds); the others read
+    /// the analysis.
+    pub fn check(&self, stage: &Stage, a: &Analysis) -> Vec<Check> {
+        let mut out = self.check_small_signal(a);
+        if let (Some(limit), Some(c)) = (self.max_thd, self.thd_condition()) {
+            out.push(thd_check(stage, c, limit));
+        }
+        out
+    }
+
+    /// The checks of every requirement that is set but `max_thd`: those
+    /// the small-signal analysis answers.
+    pub(crate) fn check_small_signal(&self, a: &Analysis) -> Vec<Check> {
         let b = &a.bandwidth;
         self.limits()
+            .filter(|(r, _)| r.quantity != Quantity::Thd)
             .map(|(r, limit)| match r.side() {
                 Some(Side::Lower) => {
                     corner_check(Side::Lower, r.label(), b.low_edge, b.f_low, limit, b)
@@ -293,6 +397,50 @@ impl Requirements {
                 None => r.check(r.label(), r.reading(result_of(a, r.quantity)), limit),
             })
             .collect()
+    }
+}
+
+/// What the THD check names the result: "THD at 2 V peak, 1 kHz".
+pub(crate) fn thd_label(c: ThdCondition) -> alloc::string::String {
+    alloc::format!(
+        "THD at {} peak, {}",
+        format_si(c.swing, "V"),
+        format_si(c.frequency, "Hz")
+    )
+}
+
+/// The check of `max_thd` (`limit`, a share) on `stage` driven to the
+/// output peak of `c`: the THD of the periodic steady state there
+/// ([`LargeSignal::at_output`]), shown in percent. A stage that cannot
+/// deliver the peak, or whose steady state is not found, fails with the
+/// reason.
+pub fn thd_check(stage: &Stage, c: ThdCondition, limit: f64) -> Check {
+    let what = thd_label(c);
+    let found = LargeSignal::new(stage).and_then(|l| l.at_output(c.swing, c.frequency));
+    thd_check_of(&what, found.map(|w| w.thd), limit)
+}
+
+/// The check of `max_thd` from a THD found (or the error of its search).
+pub(crate) fn thd_check_of(what: &str, thd: Result<f64>, limit: f64) -> Check {
+    let req = REQUIREMENTS
+        .iter()
+        .find(|r| r.quantity == Quantity::Thd)
+        .expect("the table has max_thd");
+    match thd {
+        Ok(v) => req.check(what, v, limit),
+        // Not found: 0 as the value, like a corner not found; the message
+        // and `pass` say what happened.
+        Err(e) => Check {
+            id: req.key.into(),
+            pass: false,
+            value: 0.0,
+            limit: 100.0 * limit,
+            unit: "%",
+            message: alloc::format!(
+                "{what}: not found ({e}); the required at most {} is not shown",
+                format_si(100.0 * limit, "%")
+            ),
+        },
     }
 }
 

@@ -33,7 +33,10 @@ use stagewright::{
     DEFAULT_TRIALS, MAX_DEPTH, MAX_ECHO, MAX_NOTES, MAX_SUPPLY, MAX_TITLE, MAX_TRIALS,
     MIN_RESISTANCE, OPEN_RESISTANCE, PRESETS, SEARCH_FROM, SEARCH_TO,
 };
-use stagewright::{utf8_text, Bound, Report, RequirementsDocument, FIGURES, RATINGS, REQUIREMENTS};
+use stagewright::{
+    utf8_text, Bound, Report, Requirement, RequirementsDocument, CONDITIONS, FIGURES, RATINGS,
+    REQUIREMENTS,
+};
 
 /// |a − b| / max(|a|, |b|), 0 when both are 0.
 fn rel(a: f64, b: f64) -> f64 {
@@ -398,7 +401,7 @@ fn limits_ideal_capacitors_give_no_lower_corner() {
         max_f_low: Some(1.0),
         ..Requirements::default()
     }
-    .check(&a);
+    .check(&s, &a);
     assert!(met[0].pass, "{}", met[0].message);
     let f_high = a
         .bandwidth
@@ -451,7 +454,7 @@ fn limits_a_coupling_capacitor_far_too_small_leaves_no_passband() {
         min_f_high: Some(1e-3),
         ..Requirements::default()
     }
-    .check(&a);
+    .check(&s, &a);
     assert!(checks.iter().all(|c| !c.pass), "{checks:?}");
     assert!(checks.iter().all(|c| c.value.is_finite()));
     assert!(
@@ -703,10 +706,16 @@ fn ratings_table_names_every_rating_check() {
 
 #[test]
 fn requirements_table_is_the_file_format() {
-    // The one table of requirements: the same keys, in the same order, as
-    // the design file's requirements block; each bound is named by its
-    // prefix; a file setting every key reads back the table's limits.
-    let keys: Vec<&str> = REQUIREMENTS.iter().map(|r| r.key).collect();
+    // The one table of requirements and then the conditions: the same
+    // keys, in the same order, as the design file's requirements block;
+    // each bound is named by its prefix; a file setting every key reads
+    // back the table's limits (a share, written in percent, as its
+    // fraction).
+    let keys: Vec<&str> = REQUIREMENTS
+        .iter()
+        .map(|r| r.key)
+        .chain(CONDITIONS.iter().map(|c| c.key))
+        .collect();
     let block: Vec<&str> = RequirementsDocument::KEYS
         .iter()
         .map(|k| k.trim_start_matches("requirements."))
@@ -729,16 +738,21 @@ fn requirements_table_is_the_file_format() {
             text.push(',');
         }
         // Limits that pass each rule: 1, 2, 3, … in the requirement's unit.
-        text.push_str(&format!(r#""{}": {}"#, r.key, i + 1));
+        if r.unit == "%" {
+            text.push_str(&format!(r#""{}": "{} %""#, r.key, i + 1));
+        } else {
+            text.push_str(&format!(r#""{}": {}"#, r.key, i + 1));
+        }
     }
     text.push_str("}}");
+    let share = |r: &Requirement, x: f64| if r.unit == "%" { x / 100.0 } else { x };
     // min_voltage_gain_db 1 dB, max 2 dB: consistent; every other positive.
     let d = Design::from_json(&text).expect("a file with every requirement reads");
     let limits: Vec<(&str, f64)> = d.requirements.limits().map(|(r, l)| (r.key, l)).collect();
     assert_eq!(limits.len(), REQUIREMENTS.len());
     for (i, (key, l)) in limits.iter().enumerate() {
         assert_eq!(*key, REQUIREMENTS[i].key);
-        assert_eq!(*l, (i + 1) as f64);
+        assert_eq!(*l, share(&REQUIREMENTS[i], (i + 1) as f64));
         assert_eq!(d.requirements.get(key), Some(*l));
     }
     assert_eq!(d.requirements.get("no_such_key"), None);
@@ -764,7 +778,7 @@ fn names_parse_back() {
 fn requirements_pass_and_fail() {
     let a = analyze(&example()).expect("analyses");
     assert!(Requirements::default().is_empty());
-    assert!(Requirements::default().check(&a).is_empty());
+    assert!(Requirements::default().check(&example(), &a).is_empty());
     // The example's gain is about 12 (21.6 dB): 20 dB passes, 30 dB fails.
     let r = Requirements {
         min_voltage_gain_db: Some(20.0),
@@ -772,7 +786,7 @@ fn requirements_pass_and_fail() {
         max_f_low: Some(1.0),
         ..Requirements::default()
     };
-    let checks = r.check(&a);
+    let checks = r.check(&example(), &a);
     assert_eq!(checks.len(), 3);
     let by_id = |id: &str| checks.iter().find(|c| c.id == id).expect(id);
     assert!(by_id("min_voltage_gain_db").pass);

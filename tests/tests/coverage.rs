@@ -120,6 +120,48 @@ const COVERAGE: &[(&str, Covered)] = &[
         Unit("tolerance", "the_tolerance_analysis_is_its_parts"),
     ),
     (
+        "worst_case_with",
+        Unit(
+            "tolerance",
+            "the_thd_search_finds_the_extremes_of_every_vertex",
+        ),
+    ),
+    (
+        "ThdSearch",
+        Unit(
+            "tolerance",
+            "the_thd_search_finds_the_extremes_of_every_vertex",
+        ),
+    ),
+    (
+        "thd_check",
+        Unit(
+            "tolerance",
+            "the_nominal_thd_of_the_tolerance_analysis_is_the_checks",
+        ),
+    ),
+    (
+        "ThdCondition",
+        Unit(
+            "design_file",
+            "the_thd_requirement_reads_as_a_share_with_its_conditions",
+        ),
+    ),
+    (
+        "CONDITIONS",
+        Unit(
+            "design_file",
+            "the_thd_requirement_reads_as_a_share_with_its_conditions",
+        ),
+    ),
+    (
+        "Condition",
+        Unit(
+            "design_file",
+            "the_thd_requirement_reads_as_a_share_with_its_conditions",
+        ),
+    ),
+    (
         "worst_checks",
         Unit(
             "tolerance",
@@ -880,6 +922,7 @@ const CORE_MODULES: &[(&str, &str)] = &[
     ("synthesis", include_str!("../../core/src/synthesis/mod.rs")),
     ("tolerance", include_str!("../../core/src/tolerance/mod.rs")),
     ("fields", include_str!("../../core/src/fields.rs")),
+    ("design_file", include_str!("../../core/src/design_file.rs")),
     (
         "circuit_stages",
         include_str!("../../core/src/circuit/stages.rs"),

@@ -502,6 +502,10 @@ pub fn fields() -> JsValue {
                 let key = ["requirements.", r.key].concat();
                 list.push(&one(&key, &desc, r.unit, "value").into());
             }
+            for c in stagewright::CONDITIONS {
+                let key = ["requirements.", c.key].concat();
+                list.push(&one(&key, c.label, c.unit, "value").into());
+            }
             add_group("requirements", "Requirements", list);
         }
     }

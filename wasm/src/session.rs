@@ -46,11 +46,19 @@ fn slot(path: &str) -> Option<Slot> {
         });
     }
     let key = path.strip_prefix("requirements.")?;
+    if let Some(c) = stagewright::CONDITIONS.iter().find(|c| c.key == key) {
+        return Some(Slot {
+            name: c.key,
+            unit: c.unit,
+            value: true,
+        });
+    }
     let r = stagewright::REQUIREMENTS.iter().find(|r| r.key == key)?;
     Some(Slot {
         name: r.key,
         unit: r.unit,
-        value: true,
+        // A share ("1 %" or 0.01) is checked by the reader at compute.
+        value: r.unit != "%",
     })
 }
 

@@ -7,7 +7,7 @@
 //! file's `tolerances` block or the core's defaults, as for `stagewright
 //! check --worst-case --monte-carlo N --seed S` without tolerance options.
 
-use stagewright::{worst_case, worst_checks, MonteCarlo, ToleranceDocument};
+use stagewright::{worst_case_with, worst_checks, MonteCarlo, ToleranceDocument};
 use wasm_bindgen::prelude::*;
 
 use crate::analysis::{read_design, to_js};
@@ -49,7 +49,8 @@ impl Tolerance {
         };
         let run = MonteCarlo::new(&design.stage, &t, &design.requirements, trials, seed)
             .map_err(|e| core_error(&e))?;
-        let worst = worst_case(&design.stage, &t).map_err(|e| core_error(&e))?;
+        let worst =
+            worst_case_with(&design.stage, &t, &design.requirements).map_err(|e| core_error(&e))?;
         let checks = worst_checks(&design.requirements, &worst);
         // The document `check --json` writes (its Monte Carlo part comes
         // from `summary`, with the histograms the page draws).

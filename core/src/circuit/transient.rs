@@ -645,6 +645,9 @@ pub struct Periodic {
     /// branch's charge at the start, then one step before (C), to seed a
     /// neighbouring solve ([`periodic_steady_state_from`]).
     pub start: Vec<f64>,
+    /// The DC state's charges, one per charge-storing branch: what `start`
+    /// departs from.
+    pub dc: Vec<f64>,
     /// Newton iterations over every time point of every period.
     pub newton_iterations: u32,
     /// The largest charge mismatch over the accepted period, in volts
@@ -665,12 +668,13 @@ pub fn periodic_steady_state(net: &Netlist, frequency: f64, samples: usize) -> R
 }
 
 /// [`periodic_steady_state`] started from a neighbouring solution: with
-/// `seed` = (the [`Periodic::start`] of a steady state of the same netlist
-/// at another drive, the ratio r of this drive to that one), the first
-/// guess of the state is
-/// the DC state plus r times that one's departure from it (exact for a
-/// linear circuit), which saves a period or two along a sweep of
-/// amplitudes.
+/// `seed` = (the [`Periodic::start`] and [`Periodic::dc`] of a steady state
+/// of a netlist of the same elements, at another drive or with other
+/// values, and the ratio r of this drive to that one), the first guess of
+/// the state is this netlist's DC state plus r times that one's departure
+/// from its own DC state (exact for a linear circuit), which saves a period
+/// or two along a sweep of amplitudes or over a tolerance box. A seed of
+/// another shape is ignored.
 ///
 /// # Errors
 /// As [`periodic_steady_state`].
@@ -678,7 +682,7 @@ pub fn periodic_steady_state_from(
     net: &Netlist,
     frequency: f64,
     samples: usize,
-    seed: Option<(&[f64], f64)>,
+    seed: Option<(&[f64], &[f64], f64)>,
 ) -> Result<Periodic> {
     if !(frequency.is_finite() && frequency > 0.0) {
         return Err(Error::new(
@@ -708,11 +712,10 @@ pub fn periodic_steady_state_from(
     let scale: Vec<f64> = c_dc.iter().map(|c| libm::fmax(*c, 1e-15)).collect();
     let mut z = q_dc.clone();
     z.extend_from_slice(&q_dc);
-    if let Some((start, r)) = seed {
-        if start.len() == z.len() && r.is_finite() {
+    if let Some((start, seed_dc, r)) = seed {
+        if start.len() == z.len() && seed_dc.len() == m && r.is_finite() {
             for (k, zk) in z.iter_mut().enumerate() {
-                let dc = q_dc[k % m];
-                *zk = dc + r * (start[k] - dc);
+                *zk = q_dc[k % m] + r * (start[k] - seed_dc[k % m]);
             }
         }
     }
@@ -854,6 +857,7 @@ pub fn periodic_steady_state_from(
         capacitor_currents,
         periods,
         start,
+        dc: q_dc,
         newton_iterations,
         residual,
     })

@@ -9,11 +9,11 @@ use core::fmt::Write as _;
 
 use super::json::path;
 use super::schema::block;
-use super::typed::{file_celsius, optional, Typed};
+use super::typed::{file_celsius, optional, share, Typed};
 use crate::constants::Temperature;
 use crate::error::{non_negative, positive, Error, ErrorKind, Result};
 use crate::presets::preset;
-use crate::requirements::{Requirements, Rule, REQUIREMENTS};
+use crate::requirements::{Requirements, Rule, CONDITIONS, REQUIREMENTS};
 use crate::stage::StageKind;
 use crate::transistor::{Polarity, TransistorData, DEFAULT_BETA_REVERSE, DEFAULT_XTB};
 
@@ -89,6 +89,12 @@ block! {
             max_supply_current,
             /// Largest junction temperature, °C.
             max_junction_temperature,
+            /// Largest THD at the load, a share (`0.01` or `"1 %"`).
+            max_thd,
+            /// The output peak at which `max_thd` holds, V.
+            thd_swing,
+            /// The frequency at which `max_thd` holds, Hz.
+            thd_frequency,
         ],
     }
 }
@@ -187,14 +193,55 @@ pub(crate) fn requirements_from(r: &RequirementsDocument) -> Result<Requirements
     let mut out = Requirements::default();
     for req in &REQUIREMENTS {
         let name = field(req.key);
-        let value = optional(&r.value(req.key).cloned(), &name, req.unit)?
-            .map(|x| match req.rule {
-                Rule::Finite => Ok(x),
-                Rule::Positive => positive(&name, x, req.unit),
-                Rule::NonNegative => non_negative(&name, x, req.unit),
-            })
-            .transpose()?;
+        let typed = r.value(req.key).cloned();
+        let value = if req.rule == Rule::Share {
+            typed
+                .map(|t| {
+                    let x = share(&t, &name, 1.0)?;
+                    if x > 0.0 && x < 1.0 {
+                        Ok(x)
+                    } else {
+                        Err(Error::out_of_range(
+                            &name,
+                            x,
+                            "",
+                            "a share above 0 and below 1 (0 to 100 %), such as 0.01 or \"1 %\"",
+                        ))
+                    }
+                })
+                .transpose()?
+        } else {
+            optional(&typed, &name, req.unit)?
+                .map(|x| match req.rule {
+                    Rule::Finite | Rule::Share => Ok(x),
+                    Rule::Positive => positive(&name, x, req.unit),
+                    Rule::NonNegative => non_negative(&name, x, req.unit),
+                })
+                .transpose()?
+        };
         out.set(req.key, value);
+    }
+    for c in &CONDITIONS {
+        let name = field(c.key);
+        let value = optional(&r.value(c.key).cloned(), &name, c.unit)?
+            .map(|x| positive(&name, x, c.unit))
+            .transpose()?;
+        if value.is_some() && out.get(c.of).is_none() {
+            let mut reason = String::new();
+            let _ = write!(
+                reason,
+                "{} is the {} of {}; give {} too, or remove {}",
+                c.key, c.label, c.of, c.of, c.key
+            );
+            return Err(Error::inconsistent(name, reason));
+        }
+        out.set(c.key, value);
+    }
+    if out.max_thd.is_some() && out.thd_condition().is_none() {
+        return Err(Error::missing(
+            field("thd_swing"),
+            "max_thd is judged at an output peak: give thd_swing (the peak at the load, such as \"2 V\"), or min_swing",
+        ));
     }
     if let (Some(lo), Some(hi)) = (out.min_voltage_gain_db, out.max_voltage_gain_db) {
         if lo > hi {

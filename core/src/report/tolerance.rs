@@ -7,10 +7,10 @@
 //! |---|---|
 //! | `format` | `"stagewright-tolerance/1"` (left out of a `check --json` entry, whose document has its own) |
 //! | `tolerances` | the spread analysed: `resistor_tolerance`, `capacitor_tolerance`, `supply_tolerance` (shares), `vbe_spread` (V), `ambient_min`, `ambient_max` (°C), `hfe_min`, `hfe_max` |
-//! | `corners` | each result: `nominal`, `min`, `max`, `unit`, and `corner.min`, `corner.max`, the vertex of each as `{"r1": "max", "hfe": "min", …}`; `null` without a worst case |
-//! | `worst_case` | `pass`, `vertices`, `inactive_vertices`, and `checks`: each requirement at its worst vertex (`id`, `pass`, `value`, `limit`, `unit`, `message`, `corner`); `null` without a worst case |
+//! | `corners` | each result: `nominal`, `min`, `max`, `unit`, and `corner.min`, `corner.max`, the vertex of each as `{"r1": "max", "hfe": "min", …}`; `null` without a worst case. With `max_thd`, `thd` is among them, a share (its `max` `null` when some vertex does not deliver the peak) |
+//! | `worst_case` | `pass`, `vertices`, `inactive_vertices`, with `max_thd` `thd_search` (`solved`: the vertices whose steady state the search solved, `of`: all of them), and `checks`: each requirement at its worst vertex (`id`, `pass`, `value`, `limit`, `unit`, `message`, `corner`; `max_thd` in `%`); `null` without a worst case |
 //! | `sensitivity` | `[{quantity, parameter, percent_per_percent}]`, largest first |
-//! | `monte_carlo` | `trials`, `completed`, `seed`, `yield`, `min_yield`, `pass`, `no_solution`, `not_active`, `requirements` (the yield of each), `percentiles` (`p1`, `p50`, `p99`, `unit` of each result); `null` without a Monte Carlo run |
+//! | `monte_carlo` | `trials`, `completed`, `seed`, `yield`, `min_yield`, `pass`, `no_solution`, `not_active`, with `max_thd` `thd_solved` (trials whose THD was solved, the others' predicted), `requirements` (the yield of each), `percentiles` (`p1`, `p50`, `p99`, `unit` of each result); `null` without a Monte Carlo run |
 
 use alloc::vec::Vec;
 
@@ -190,6 +190,20 @@ impl Serialize for Worst<'_> {
         m.serialize_field("pass", &self.pass)?;
         m.serialize_field("vertices", &self.worst.vertices)?;
         m.serialize_field("inactive_vertices", &self.worst.inactive_vertices)?;
+        if let Some(t) = &self.worst.thd {
+            #[derive(Serialize)]
+            struct Search {
+                solved: usize,
+                of: usize,
+            }
+            m.serialize_field(
+                "thd_search",
+                &Search {
+                    solved: t.solved,
+                    of: t.of,
+                },
+            )?;
+        }
         m.serialize_field("checks", &rows)?;
         m.end()
     }
@@ -248,6 +262,9 @@ impl Serialize for Trials<'_> {
         m.serialize_field("pass", &self.pass)?;
         m.serialize_field("no_solution", &t.no_solution)?;
         m.serialize_field("not_active", &t.not_active)?;
+        if let Some(n) = t.thd_solved {
+            m.serialize_field("thd_solved", &n)?;
+        }
         m.serialize_field("requirements", &Yields(t))?;
         m.serialize_field("percentiles", &Percentiles(t))?;
         m.end()

@@ -161,7 +161,7 @@ impl Ctx<'_> {
             }
             // The real check: the ordinary analysis.
             let analysis = analyze(&st)?;
-            let checks = s.requirements.check(&analysis);
+            let checks = s.requirements.check_small_signal(&analysis);
             if checks.iter().all(|c| c.pass) && analysis.operating_point.region == Region::Active {
                 if cap_steps > 0 {
                     notes.push(format!(

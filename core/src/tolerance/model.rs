@@ -275,6 +275,17 @@ pub(super) struct Model {
     pub(super) edges: [Edge; 2],
     /// The nominal results.
     pub(super) sample: Sample,
+    /// Where the THD is followed (the `max_thd` requirement's condition),
+    /// when it is.
+    pub(super) thd: Option<ThdCondition>,
+    /// The nominal stage's steady state at that condition, which seeds
+    /// every other point's (`None` when not followed or not found).
+    pub(super) thd_seed: Option<Waveform>,
+    /// Why the nominal stage's THD was not found, when it was not.
+    pub(super) thd_nominal_error: Option<alloc::string::String>,
+    /// The `max_thd` limit the screening of trials measures against (1
+    /// when the THD is not followed).
+    pub(super) thd_limit: f64,
 }
 
 /// The DC solution of one point, ready for the small-signal work.
@@ -285,8 +296,13 @@ pub(super) struct Solved {
 }
 
 impl Model {
-    /// The model of `stage` with the ranges of `tol` (`None`: nominal only).
-    pub(super) fn new(stage: &Stage, tol: Option<&Tolerances>) -> Result<Model> {
+    /// The model of `stage` with the ranges of `tol` (`None`: nominal only),
+    /// following the THD at `thd` when given.
+    pub(super) fn new(
+        stage: &Stage,
+        tol: Option<&Tolerances>,
+        thd: Option<ThdCondition>,
+    ) -> Result<Model> {
         stage.validate()?;
         if let Some(t) = tol {
             t.validate(stage)?;
@@ -365,6 +381,10 @@ impl Model {
                 values: [f64::NAN; QUANTITIES],
                 active: false,
             },
+            thd,
+            thd_seed: None,
+            thd_nominal_error: None,
+            thd_limit: 1.0,
         };
         // The nominal corners: found by the full search of the ordinary
         // analysis, then settled again by this module's own search from that
@@ -402,8 +422,36 @@ impl Model {
             });
             sample.values[q.index()] = f;
         }
+        // The nominal THD, from no seed: the same search as the check's
+        // (`Requirements::check`), so the two agree exactly.
+        if let Some(c) = thd {
+            match LargeSignal::at_bias(&solved.stage, solved.op, &solved.ss)
+                .and_then(|l| l.at_output(c.swing, c.frequency))
+            {
+                Ok(w) => {
+                    sample.values[Quantity::Thd.index()] = w.thd;
+                    model.thd_seed = Some(w);
+                }
+                Err(e) => model.thd_nominal_error = Some(alloc::format!("{e}")),
+            }
+        }
         model.sample = sample;
         Ok(model)
+    }
+
+    /// The THD at the followed condition of the solved point `solved`,
+    /// seeded from the nominal steady state: NaN when the THD is not
+    /// followed; the search's error when the stage does not deliver the
+    /// output peak or its steady state is not found.
+    pub(super) fn thd_of(&self, solved: &Solved) -> Result<f64> {
+        let Some(c) = self.thd else {
+            return Ok(f64::NAN);
+        };
+        let l = LargeSignal::at_bias(&solved.stage, solved.op, &solved.ss)?;
+        Ok(
+            l.at_output_from(c.swing, c.frequency, self.thd_seed.as_ref())?
+                .thd,
+        )
     }
 
     /// The parameters that vary (present and with a range).
@@ -513,6 +561,7 @@ impl Model {
         let resp = Response::new(&solved.stage, &solved.ss)?;
         let mut s = midband_sample(&solved, &resp);
         corners_into(&resp, lower, upper, tol, false, &mut s)?;
+        s.values[Quantity::Thd.index()] = self.thd_of(&solved).unwrap_or(f64::NAN);
         let mut slopes = [f64::NAN; 2];
         if shape {
             for (k, q) in [Quantity::FLow, Quantity::FHigh].into_iter().enumerate() {
@@ -526,18 +575,36 @@ impl Model {
     }
 
     /// A Monte Carlo trial's results: the corners from the predicted starts,
-    /// accepted after one solve when the step is small.
+    /// accepted after one solve when the step is small; the THD (when
+    /// followed) predicted as `thd_predicted` when the screening of the
+    /// module docs allows it, else solved. The flag says it was solved.
     pub(super) fn evaluate_quick(
         &self,
         x: &[f64; PARAMETERS],
         lower: Option<Start>,
         upper: Option<Start>,
-    ) -> Result<Sample> {
+        thd_predicted: f64,
+    ) -> Result<(Sample, bool)> {
         let solved = self.solve(x)?;
         let resp = Response::new(&solved.stage, &solved.ss)?;
         let mut s = midband_sample(&solved, &resp);
         corners_into(&resp, lower, upper, FAST, true, &mut s)?;
-        Ok(s)
+        let Some(c) = self.thd else {
+            return Ok((s, false));
+        };
+        let limit = self.thd_limit;
+        let screened = thd_predicted.is_finite()
+            && thd_predicted < SCREEN_SHARE * limit
+            && s.get(Quantity::Swing) >= SCREEN_HEADROOM * c.swing
+            && s.active;
+        if screened {
+            s.values[Quantity::Thd.index()] = thd_predicted;
+            return Ok((s, false));
+        }
+        // A THD not found (the peak not delivered) is NaN: the trial fails
+        // max_thd and is left out of the THD's percentiles.
+        s.values[Quantity::Thd.index()] = self.thd_of(&solved).unwrap_or(f64::NAN);
+        Ok((s, true))
     }
 }
 

@@ -38,6 +38,8 @@ pub(super) const DONE: u32 = 1 << 31;
 pub(super) const NO_SOLUTION: u32 = 1 << 30;
 /// Bit of a trial's state: it solved, but not in the active region.
 pub(super) const NOT_ACTIVE: u32 = 1 << 29;
+/// Bit of a trial's state: its THD was solved, not predicted.
+pub(super) const THD_SOLVED: u32 = 1 << 28;
 /// Bits of a trial's state that hold the failed requirements.
 pub(super) const FAILED_MASK: u32 = (1 << REQUIREMENTS.len()) - 1;
 
@@ -118,6 +120,10 @@ pub struct MonteCarloSummary {
     pub no_solution: usize,
     /// Trials that solved but whose transistor is saturated or cut off.
     pub not_active: usize,
+    /// With `max_thd`: the trials whose THD was solved (the others' was
+    /// predicted, module docs); `None` without it.
+    #[cfg_attr(feature = "serde", serde(skip_serializing_if = "Option::is_none"))]
+    pub thd_solved: Option<usize>,
     /// The yield of each requirement that is set.
     pub requirements: Vec<RequirementYield>,
     /// One entry per result that the stage has, in the order of [`Quantity::ALL`].
@@ -145,7 +151,10 @@ impl MonteCarlo {
         seed: u64,
     ) -> Result<MonteCarlo> {
         within("trials", trials as f64, 1.0, MAX_TRIALS as f64, "")?;
-        let model = Model::new(stage, Some(tolerances))?;
+        let mut model = Model::new(stage, Some(tolerances), requirements.thd_condition())?;
+        if let Some(l) = requirements.max_thd {
+            model.thd_limit = l;
+        }
         let (sensitivity, prediction) = model.sensitivity()?;
         Ok(MonteCarlo {
             model,
@@ -243,11 +252,15 @@ impl MonteCarlo {
         };
         let lower = predict(m.lower, 0);
         let upper = predict(m.upper, 1);
-        match m.evaluate_quick(&x, lower, upper) {
-            Ok(s) => {
+        let thd = p.thd_at(m.sample.get(Quantity::Thd), &ln_ratio);
+        match m.evaluate_quick(&x, lower, upper, thd) {
+            Ok((s, thd_solved)) => {
                 let mut state = failed_requirements(&self.requirements, &s, m.edges);
                 if !s.active {
                     state |= NOT_ACTIVE;
+                }
+                if thd_solved {
+                    state |= THD_SOLVED;
                 }
                 (s.values, state)
             }
@@ -275,9 +288,13 @@ impl MonteCarlo {
         let mut no_solution = 0usize;
         let mut not_active = 0usize;
         let mut req_fail = [0usize; REQUIREMENTS.len()];
+        let mut thd_solved = 0usize;
         for &s in &self.state {
             if s & DONE == 0 {
                 continue;
+            }
+            if s & THD_SOLVED != 0 {
+                thd_solved += 1;
             }
             if s & FAILED_MASK == 0 {
                 passed += 1;
@@ -334,6 +351,7 @@ impl MonteCarlo {
             yield_fraction: share(passed),
             no_solution,
             not_active,
+            thd_solved: self.model.thd.map(|_| thd_solved),
             requirements,
             distributions,
         }

@@ -43,6 +43,28 @@ pub struct WorstCase {
     pub low_edge: Edge,
     /// The same for the upper corner.
     pub high_edge: Edge,
+    /// How the THD's extremes were searched, when the THD is followed (a
+    /// `max_thd` requirement, [`worst_case_with`]).
+    pub thd: Option<ThdSearch>,
+}
+
+/// A vertex (mask, capacitors) and the THD found there.
+type Found = ((u32, i8), f64);
+
+/// The search of the THD's extremes over the box (module docs: a steady
+/// state at every vertex would cost seconds).
+#[derive(Debug, Clone, PartialEq)]
+#[cfg_attr(feature = "serde", derive(serde::Serialize))]
+pub struct ThdSearch {
+    /// Vertices whose steady state was solved.
+    pub solved: usize,
+    /// Vertices in all (each capacitor setting counted, when there are
+    /// capacitors).
+    pub of: usize,
+    /// A vertex where the stage does not deliver the output peak or its
+    /// steady state is not found, with the reason: the highest THD is then
+    /// unbounded (`max` is infinite) and `max_thd` fails there.
+    pub failure: Option<(Corner, alloc::string::String)>,
 }
 
 impl WorstCase {
@@ -173,6 +195,27 @@ impl Model {
                 }
             }
         }
+        let thd = if let Some(why) = &self.thd_nominal_error {
+            Some(ThdSearch {
+                solved: 0,
+                of: 0,
+                failure: Some((self.corner(&axes, (u32::MAX, 0)), why.clone())),
+            })
+        } else if self.thd.is_some() {
+            let (search, low, high) = self.thd_search(&axes, !caps.is_empty(), &tracks);
+            let t = &mut tracks[Quantity::Thd.index()];
+            *t = Track::new(nominal.get(Quantity::Thd));
+            t.add(low.1, low.0);
+            // The highest may be unbounded (a vertex that does not deliver
+            // the peak), which `add` would skip.
+            if high.1 > t.max {
+                t.max = high.1;
+                t.max_at = high.0;
+            }
+            Some(search)
+        } else {
+            None
+        };
         let extremes = Quantity::ALL
             .into_iter()
             .filter(|q| nominal.get(*q).is_finite())
@@ -194,7 +237,135 @@ impl Model {
             inactive_vertices,
             low_edge: edges[0],
             high_edge: edges[1],
+            thd,
         })
+    }
+
+    /// The point of the vertex `at` = (mask over `axes`, capacitors −1/1,
+    /// or 0 when there are none).
+    pub(super) fn vertex(&self, axes: &[Parameter], at: (u32, i8)) -> [f64; PARAMETERS] {
+        let mut x = self.nominal;
+        for (bit, p) in axes.iter().enumerate() {
+            let i = p.index();
+            x[i] = if at.0 & (1 << bit) != 0 {
+                self.high[i]
+            } else {
+                self.low[i]
+            };
+        }
+        for p in self.varying().filter(|p| p.is_capacitor()) {
+            let i = p.index();
+            x[i] = if at.1 < 0 { self.low[i] } else { self.high[i] };
+        }
+        x
+    }
+
+    /// The THD's lowest and highest over the box, each with its vertex, by
+    /// the search of the module docs: the vertices where the small-signal
+    /// results that drive distortion are at their extremes (`tracks`: the
+    /// swing's lowest, the gain's and IC's lowest and highest), each with
+    /// the capacitors at their minimum, then single flips (one parameter,
+    /// or every capacitor together) from the best of them, taken while they
+    /// improve.
+    fn thd_search(
+        &self,
+        axes: &[Parameter],
+        caps: bool,
+        tracks: &[Track],
+    ) -> (ThdSearch, Found, Found) {
+        let cap_low: i8 = if caps { -1 } else { 0 };
+        let mut seen: Vec<Found> = Vec::new();
+        let mut failure: Option<(Corner, alloc::string::String)> = None;
+        let mut thd_at = |at: (u32, i8), seen: &mut Vec<Found>| -> f64 {
+            if let Some(&(_, v)) = seen.iter().find(|(a, _)| *a == at) {
+                return v;
+            }
+            let x = self.vertex(axes, at);
+            let v = match self.solve(&x).and_then(|s| self.thd_of(&s)) {
+                Ok(v) => v,
+                Err(e) => {
+                    if failure.is_none() {
+                        failure = Some((self.corner(axes, at), alloc::format!("{e}")));
+                    }
+                    f64::INFINITY
+                }
+            };
+            seen.push((at, v));
+            v
+        };
+        let mut starts: Vec<(u32, i8)> = Vec::new();
+        for (q, lowest, highest) in [
+            (Quantity::Swing, true, false),
+            (Quantity::VoltageGain, true, true),
+            (Quantity::Ic, true, true),
+        ] {
+            let t = &tracks[q.index()];
+            for (wanted, at) in [(lowest, t.min_at), (highest, t.max_at)] {
+                if wanted && at.0 != u32::MAX && !starts.iter().any(|s| s.0 == at.0) {
+                    starts.push((at.0, cap_low));
+                }
+            }
+        }
+        if starts.is_empty() {
+            starts.push((0, cap_low));
+        }
+        let mut result = [((0u32, 0i8), 0.0); 2];
+        for (k, sign) in [1.0f64, -1.0].into_iter().enumerate() {
+            // sign 1: the highest (an unbounded THD is the highest there
+            // is); sign −1: the lowest (an unbounded one is never it).
+            let score = |v: f64| {
+                if sign > 0.0 {
+                    v
+                } else if v.is_finite() {
+                    -v
+                } else {
+                    f64::NEG_INFINITY
+                }
+            };
+            let mut best = starts[0];
+            let mut best_v = score(thd_at(best, &mut seen));
+            for &s in &starts[1..] {
+                let v = score(thd_at(s, &mut seen));
+                if v > best_v {
+                    best = s;
+                    best_v = v;
+                }
+            }
+            while best_v < f64::INFINITY {
+                let mut step: Option<((u32, i8), f64)> = None;
+                let flips = (0..axes.len())
+                    .map(|b| (best.0 ^ (1 << b), best.1))
+                    .chain(caps.then_some((best.0, -best.1)));
+                for n in flips {
+                    let v = score(thd_at(n, &mut seen));
+                    if v > step.map_or(best_v, |s| s.1) {
+                        step = Some((n, v));
+                    }
+                }
+                match step {
+                    Some((n, v)) => {
+                        best = n;
+                        best_v = v;
+                    }
+                    None => break,
+                }
+            }
+            let v = seen
+                .iter()
+                .find(|(a, _)| *a == best)
+                .map_or(f64::NAN, |e| e.1);
+            result[k] = (best, v);
+        }
+        let of = (1usize << axes.len()) * if caps { 2 } else { 1 };
+        (
+            ThdSearch {
+                solved: seen.len(),
+                of,
+                failure,
+            },
+            result[1],
+            result[0],
+        )
     }
 }
 
@@ -209,11 +380,51 @@ pub(super) fn at_corner(e: Error, corner: &Corner) -> Error {
     Error::inconsistent("tolerances", alloc::format!("{what}: {e}"))
 }
 
+/// `max_thd` (`limit`) judged at the highest THD the search found.
+fn worst_thd_check(requirements: &Requirements, worst: &WorstCase, limit: f64) -> WorstCheck {
+    let what = match requirements.thd_condition() {
+        Some(c) => ["worst-case ", &thd_label(c)].concat(),
+        None => "worst-case THD".into(),
+    };
+    let failed = |why: alloc::string::String, corner: Option<Corner>| WorstCheck {
+        check: thd_check_of(&what, Err(Error::inconsistent("tolerances", why)), limit),
+        corner,
+    };
+    let Some(search) = &worst.thd else {
+        return failed(
+            "this worst case did not follow it (worst_case_with does)".into(),
+            None,
+        );
+    };
+    match (worst.get(Quantity::Thd), &search.failure) {
+        (Some(e), _) if e.max.is_finite() => WorstCheck {
+            check: thd_check_of(&what, Ok(e.max), limit),
+            corner: Some(e.max_corner.clone()),
+        },
+        (_, Some((corner, why))) => failed(
+            alloc::format!("at a vertex of the tolerance box, {why}"),
+            Some(corner.clone()),
+        ),
+        _ => failed("not found".into(), None),
+    }
+}
+
 /// The worst case of `stage` over the box of `tolerances`: every vertex of
 /// the resistors, hFE, VBE, ambient and supply, each with the capacitors all
 /// at their minimum and all at their maximum (see the module docs).
 pub fn worst_case(stage: &Stage, tolerances: &Tolerances) -> Result<WorstCase> {
-    Model::new(stage, Some(tolerances))?.worst_case()
+    Model::new(stage, Some(tolerances), None)?.worst_case()
+}
+
+/// [`worst_case`], also following the results that `requirements` need
+/// beyond the small-signal ones: with `max_thd` set, the THD at its
+/// condition, whose extremes are searched (module docs).
+pub fn worst_case_with(
+    stage: &Stage,
+    tolerances: &Tolerances,
+    requirements: &Requirements,
+) -> Result<WorstCase> {
+    Model::new(stage, Some(tolerances), requirements.thd_condition())?.worst_case()
 }
 
 /// One requirement judged at the vertex of the tolerance box where it is
@@ -239,6 +450,10 @@ pub struct WorstCheck {
 pub fn worst_checks(requirements: &Requirements, worst: &WorstCase) -> Vec<WorstCheck> {
     let mut out = Vec::new();
     for (req, limit) in requirements.limits() {
+        if req.quantity == Quantity::Thd {
+            out.push(worst_thd_check(requirements, worst, limit));
+            continue;
+        }
         let what = ["worst-case ", req.label()].concat();
         let at_least = req.bound == Bound::AtLeast;
         // A corner that is not found at every vertex: the rules of the
