@@ -1,7 +1,7 @@
 #!/usr/bin/env bash
 # Builds the web deliverable, one element with every view:
 #   dist/stagewright.html  the calculator: self-contained page, opens from
-#                          file:// offline (budget 250 KB gzip, 800 KB raw)
+#                          file:// offline (budget 280 KB gzip, 800 KB raw)
 #   dist/stagewright.js    embeddable classic script defining
 #                          <stagewright-calc>
 # Both carry every view: the calculator, "from requirements" and

@@ -52,9 +52,11 @@ const outDir = arg("--out", path.join(root, "dist"));
 const baseName = "stagewright";
 
 // Size budget of the standalone page (DEVELOPERS.md, "Size"): 800 KB raw
-// and 250 KB gzipped, for the element with every view.
+// and 280 KB gzipped, for the element with every view. 250 KB until the
+// page checked max_thd: the check links the large-signal engine (the
+// transient integrator, the steady-state shooting and the DFT), 24 KB gzip.
 const BUDGET_HTML_RAW = 800 * 1000;
-const BUDGET_HTML_GZIP = 250 * 1000;
+const BUDGET_HTML_GZIP = 280 * 1000;
 
 const read = (p) => readFileSync(p, "utf8");
 

@@ -329,12 +329,16 @@ export const withToleranceView = (Base) => class extends Base {
       const s = Object.entries(c).filter(([, level]) => level !== "nominal").map(([p, level]) => (level === "max" ? "+" : "−") + p);
       return s.length ? s.join(" ") : "nominal";
     };
+    // The THD is a share: shown in percent, "unbounded" where a vertex
+    // does not deliver its output peak (a null max).
+    const g = (q, v, unit) => (q !== "thd" ? f(v, unit)
+      : typeof v === "number" && Number.isFinite(v) ? api.format_si(100 * v, "%") : "unbounded");
     const w = r.worst_case;
     const worst = h("table", { class: "numbers tol-worst" },
       h("caption", null, `Worst case over ${w.vertices} vertices` + (w.inactive_vertices ? ` (${w.inactive_vertices} not in the active region: vertex extremes only)` : "")),
       h("thead", null, h("tr", null, ...["result", "nominal", "min", "max", "min at", "max at"].map((c) => h("th", { scope: "col" }, c)))),
       h("tbody", null, ...Object.entries(r.corners).map(([q, e]) => h("tr", null, h("th", { scope: "row" }, q.replace(/_/g, " ")),
-        h("td", null, f(e.nominal, e.unit)), h("td", null, f(e.min, e.unit)), h("td", null, f(e.max, e.unit)),
+        h("td", null, g(q, e.nominal, e.unit)), h("td", null, g(q, e.min, e.unit)), h("td", null, g(q, e.max, e.unit)),
         h("td", { class: "corner" }, corner(e.corner.min)), h("td", { class: "corner" }, corner(e.corner.max))))));
     const checks = w.checks.length
       ? h("table", { class: "numbers tol-checks" },
@@ -363,8 +367,11 @@ export const withToleranceView = (Base) => class extends Base {
       h("thead", null, h("tr", null, ...["result", "p1", "p50", "p99", "mean"].map((c) => h("th", { scope: "col" }, c)))),
       h("tbody", null, ...s.distributions.map((d) => {
         const unit = this._quantityUnit(d.quantity);
+        // The THD, a share, in percent.
+        const k = d.quantity === "thd" ? 100 : 1;
+        const u = d.quantity === "thd" ? "%" : unit;
         return h("tr", null, h("th", { scope: "row" }, d.quantity.replace(/_db$/, " (dB)").replace(/_/g, " ")),
-          h("td", null, f(d.p1, unit)), h("td", null, f(d.p50, unit)), h("td", null, f(d.p99, unit)), h("td", null, f(d.mean, unit)));
+          h("td", null, f(k * d.p1, u)), h("td", null, f(k * d.p50, u)), h("td", null, f(k * d.p99, u)), h("td", null, f(k * d.mean, u)));
       })));
     this._tolOut.append(
       h("p", { class: "tol-yield" }, h("strong", null, `Yield ${yieldText(s.yield)}`), ` of ${s.completed} trials, seed ${s.seed}${extra}.`, each ? ` Each requirement: ${each}.` : ""),
