@@ -87,13 +87,13 @@
 //! | `cautions[].message` | | a sentence |
 //! | `cautions[].safety` | | `true` for a caution about harm (shock, heat, a rating exceeded); a reader shows the deferral to local codes and licensed practice once when one is |
 //! | `large_signal` | | written by `analyze` (not by `design` or `check`; left out with `--small-signal-only`): the steady state under a 1 kHz sine, from the circuit engine; an `error` object instead when the stage cannot be solved in the time domain |
-//! | `large_signal.frequency` | Hz | the sine's frequency (1 kHz) |
-//! | `large_signal.max_thd` | | the THD limit of the swing, a share (0.01) |
+//! | `large_signal.frequency` | Hz | the sine's frequency: `thd_frequency`, else 1 kHz |
+//! | `large_signal.max_thd` | | the THD limit of the swing, a share: `max_thd`, else 0.01 |
 //! | `large_signal.load_line` | V | the load-line limits `positive` and `negative` (magnitudes), as `swing` |
 //! | `large_signal.limited_swing` | V | the largest output peak at the load (the fundamental) with THD at or under the limit; `null` when THD stays under it up to 150 % of the load-line limit, or as far as the stage can be driven |
 //! | `large_signal.limited_swing_emf` | V | the EMF peak that gives it |
 //! | `large_signal.limited_by` | | a sentence saying what limits it: a half clipping by saturation or cutoff, the curvature of the exponential law, or (with `limited_swing` `null`) how far the curve went |
-//! | `large_signal.at_required_swing` | | with a `min_swing` requirement: THD at that output peak, `swing`, `thd`, `emf_peak` and `clipping` (or an `error` when the stage cannot deliver it); else `null` |
+//! | `large_signal.at_required_swing` | | with a `thd_swing` (else `min_swing`) requirement: THD at that output peak, `swing`, `thd`, `emf_peak` and `clipping` (or an `error` when the stage cannot deliver it); else `null` |
 //! | `large_signal.drive_limited` | | `true` when the curve ended at an EMF of ten times the supply, short of 150 % of the load-line limit |
 //! | `large_signal.clipping` | | there: each clipped `half`, its `mechanism` and the `share` of the period |
 //! | `large_signal.terminal_shift` | V | there: the mean shift of the output terminal (collector, or a follower's emitter) from its quiescent voltage |
